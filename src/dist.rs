@@ -57,6 +57,12 @@ fn finite(name: &'static str, value: f64) -> Result<f64, DistError> {
 
 /// The standard normal quantile, Wichura's algorithm AS 241 (PPND16),
 /// Applied Statistics 37 (1988) 477-484; relative accuracy about 1e-16.
+// The coefficients are printed as in the paper.
+#[allow(
+    clippy::inconsistent_digit_grouping,
+    clippy::excessive_precision,
+    clippy::unreadable_literal
+)]
 pub fn normal_quantile(p: f64) -> f64 {
     if p <= 0.0 {
         return f64::NEG_INFINITY;
@@ -376,7 +382,11 @@ impl Life {
             Life::Exponential { mean } => 1.0 / mean,
             _ => {
                 let r = self.sf(t);
-                if r > 0.0 { self.pdf(t) / r } else { f64::INFINITY }
+                if r > 0.0 {
+                    self.pdf(t) / r
+                } else {
+                    f64::INFINITY
+                }
             }
         }
     }
@@ -435,7 +445,11 @@ impl Life {
         if r <= 1e-300 {
             // Far in the tail: the hazard is effectively its local value.
             let h = self.hazard(age);
-            return if h > 0.0 && h.is_finite() { 1.0 / h } else { 0.0 };
+            return if h > 0.0 && h.is_finite() {
+                1.0 / h
+            } else {
+                0.0
+            };
         }
         ((self.mean() - self.integral_sf(age)) / r).max(0.0)
     }

@@ -3,6 +3,16 @@
 //!
 //! The modules follow the data's path; see ARCHITECTURE.md for the map.
 
+pub mod analytic;
+pub mod averages;
+pub mod cli;
 pub mod dist;
+pub mod fit;
 pub mod model;
+pub mod outcome;
+pub mod result;
+pub mod run;
+pub mod scenario;
+pub mod sim;
 pub mod stream;
+pub mod summary;

@@ -131,7 +131,11 @@ impl Rule {
             Rule::Age(t) => Some(installed_at + (t - age).max(0.0)),
             // The first grid point strictly after installation.
             Rule::Block(t) => {
-                let k = (installed_at / t).floor() + 1.0;
+                let mut k = (installed_at / t).floor() + 1.0;
+                // Guard against rounding: the grid point must be strictly later.
+                while k * t <= installed_at {
+                    k += 1.0;
+                }
                 Some(k * t)
             }
         }
@@ -367,6 +371,12 @@ mod tests {
         assert_eq!(r.due_at(0.0, 0.0), Some(100.0));
         assert_eq!(r.due_at(100.0, 0.0), Some(200.0));
         assert_eq!(r.due_at(150.0, 0.0), Some(200.0));
+        // Grid points reached by rounding: always strictly after installation.
+        let t = 507.72;
+        for k in 1..5000 {
+            let x = k as f64 * t;
+            assert!(Rule::Block(t).due_at(x, 0.0).unwrap() > x);
+        }
     }
 
     #[test]

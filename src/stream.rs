@@ -60,7 +60,7 @@ pub struct TrialSeed {
 impl TrialSeed {
     /// The streams of trial `trial` of a scenario with seed `seed`.
     pub fn new(seed: u64, trial: u64) -> Self {
-        let base = mix(mix(seed ^ 0x5EED_0F_FEE7) ^ trial.wrapping_mul(GOLDEN));
+        let base = mix(mix(seed ^ 0x0005_EED0_FFEE) ^ trial.wrapping_mul(GOLDEN));
         TrialSeed { base }
     }
 
@@ -162,9 +162,7 @@ mod tests {
         // Mean 1/2 and variance 1/12 of U(0,1): textbook; tolerance 5 standard errors.
         let mut s = TrialSeed::new(1, 0).stream(StreamKey::InitialAges);
         let n = 200_000;
-        let xs: Vec<f64> = (0..n)
-            .map(|_| crate::dist::open_uniform(&mut s))
-            .collect();
+        let xs: Vec<f64> = (0..n).map(|_| crate::dist::open_uniform(&mut s)).collect();
         let mean = xs.iter().sum::<f64>() / n as f64;
         let var = xs.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / n as f64;
         assert!((mean - 0.5).abs() < 5.0 * (1.0f64 / 12.0 / n as f64).sqrt());

@@ -1,0 +1,181 @@
+//! The command line: argument parsing, progress bars, exit codes.
+//!
+//! Owns: everything that knows clap or indicatif, the terminal and the exit
+//! status (0 ok, 2 a user error, 1 an internal failure). The library below
+//! never prints; this layer turns its results into text or JSON.
+//! May use: every library module.
+
+mod check;
+mod evaluate;
+pub mod fit;
+mod progress;
+pub mod text;
+
+use std::io::Write;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+/// A user-facing error: one message, exit status 2.
+#[derive(Debug)]
+pub struct UserError(pub String);
+
+impl<E: std::fmt::Display> From<E> for UserError {
+    fn from(e: E) -> Self {
+        UserError(e.to_string())
+    }
+}
+
+/// wearout: choose replacement intervals and spares stock for a fleet by
+/// the chance of meeting an availability target, not by averages.
+#[derive(Debug, Parser)]
+#[command(name = "wearout", version, about, long_about = None)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// Shared options for commands that run trials.
+#[derive(Debug, clap::Args)]
+pub struct RunOpts {
+    /// Random seed (default: the scenario's `seed`).
+    #[arg(long)]
+    pub seed: Option<u64>,
+    /// Availability target A* in (0, 1] (default: the scenario's).
+    #[arg(long)]
+    pub target: Option<f64>,
+    /// Print one JSON object on stdout instead of the table.
+    #[arg(long)]
+    pub json: bool,
+    /// Worker threads (default: all cores). Never changes a result.
+    #[arg(long)]
+    pub threads: Option<usize>,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Validate a scenario and summarise its fleet, part types and policies.
+    Check {
+        /// Scenario file (TOML); the embedded demo when omitted.
+        file: Option<PathBuf>,
+    },
+    /// Cost one named policy on shared trials.
+    Evaluate {
+        /// Scenario file (TOML); the embedded demo when omitted.
+        file: Option<PathBuf>,
+        /// Name of a policy in the scenario's [policies] (default: the first).
+        #[arg(long)]
+        policy: Option<String>,
+        /// Number of trials (default: the scenario's `trials`).
+        #[arg(long)]
+        trials: Option<u64>,
+        #[command(flatten)]
+        run: RunOpts,
+    },
+    /// Fit life distributions to failure and suspension records (CSV).
+    Fit {
+        /// Records CSV: hours, failed/suspended flag, optional part column.
+        records: PathBuf,
+        /// Fit only this part type.
+        #[arg(long)]
+        part: Option<String>,
+        /// Print `{"fits": [...]}` JSON instead of the table.
+        #[arg(long)]
+        json: bool,
+        /// Write a Weibull probability plot (SVG) to this file.
+        #[arg(long)]
+        plot: Option<PathBuf>,
+    },
+}
+
+/// Run the command line; returns the process exit code.
+pub fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let code = if e.use_stderr() { 2 } else { 0 };
+            let _ = e.print();
+            return ExitCode::from(code);
+        }
+    };
+    let mut out = std::io::stdout().lock();
+    let result = dispatch(cli, &mut out);
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(UserError(msg)) => {
+            if msg == "broken pipe" {
+                return ExitCode::SUCCESS;
+            }
+            let _ = writeln!(std::io::stderr(), "error: {msg}");
+            ExitCode::from(2)
+        }
+    }
+}
+
+fn set_threads(threads: Option<usize>) -> Result<(), UserError> {
+    if let Some(n) = threads {
+        if n == 0 {
+            return Err(UserError("--threads must be at least 1".into()));
+        }
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(n)
+            .build_global()
+            .map_err(|e| UserError(format!("cannot set up {n} threads: {e}")))?;
+    }
+    Ok(())
+}
+
+fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
+    match cli.command {
+        Command::Check { file } => check::run(file.as_deref(), out),
+        Command::Evaluate {
+            file,
+            policy,
+            trials,
+            run,
+        } => {
+            set_threads(run.threads)?;
+            evaluate::run(file.as_deref(), policy.as_deref(), trials, &run, out)
+        }
+        Command::Fit {
+            records,
+            part,
+            json,
+            plot,
+        } => {
+            let args = fit::FitArgs {
+                records,
+                part,
+                json,
+                plot,
+            };
+            fit::run(&args, out).map_err(|e| match e {
+                crate::fit::FitError::Output { message, .. } if message.contains("Broken pipe") => {
+                    UserError("broken pipe".into())
+                }
+                e => UserError(e.to_string()),
+            })
+        }
+    }
+}
+
+/// Map a write error: a closed pipe is not a failure.
+pub(crate) fn io(e: std::io::Error) -> UserError {
+    if e.kind() == std::io::ErrorKind::BrokenPipe {
+        UserError("broken pipe".into())
+    } else {
+        UserError(format!("cannot write output: {e}"))
+    }
+}
+
+/// Check a target typed on the command line.
+pub(crate) fn check_target(t: Option<f64>, default: f64) -> Result<f64, UserError> {
+    match t {
+        None => Ok(default),
+        Some(x) if x > 0.0 && x <= 1.0 => Ok(x),
+        Some(x) => Err(UserError(format!(
+            "--target must be in (0, 1], e.g. 0.92 (got {x})"
+        ))),
+    }
+}

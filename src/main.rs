@@ -1,0 +1,5 @@
+//! The `wearout` binary: all the work is in the library.
+
+fn main() -> std::process::ExitCode {
+    wearout::cli::main()
+}

@@ -1,0 +1,950 @@
+//! Scenario files: TOML in, a validated [`Model`] out.
+//!
+//! Owns: the scenario file format (documented field by field in
+//! `docs/scenario-format.md`), the embedded demo scenario, and every check
+//! of what a user typed, with errors naming the file, field path, line and
+//! what is allowed. The only module that knows TOML.
+//! May use: `model`, `dist`, the `tree` walker.
+
+mod tree;
+
+use std::path::Path;
+
+use thiserror::Error;
+use toml::de::DeTable;
+
+use crate::dist::{DistError, Hours, LeadTime, Life};
+use crate::model::{
+    CostBasis, CostMeasure, CostStatistic, FleetGroup, InitialAge, Model, PartPolicy, PartSearch,
+    PartType, Policy, Position, Rule, SearchSpace, UnitType,
+};
+use tree::{Source, Tbl, Val, each};
+
+pub use tree::suggest;
+
+/// The demo scenario compiled into the binary.
+pub const DEMO: &str = include_str!("../../scenarios/demo.toml");
+/// The name under which the embedded demo is reported.
+pub const DEMO_FILE: &str = "scenarios/demo.toml (embedded)";
+
+/// A problem with a scenario file, with its place.
+#[derive(Debug, Clone, Error, PartialEq)]
+#[error("{file}:{line}:{column}: {}{message}", if path.is_empty() { String::new() } else { format!("{path}: ") })]
+pub struct ScenarioError {
+    pub file: String,
+    /// Dotted field path, e.g. `parts.engine.life.shape`.
+    pub path: String,
+    pub line: usize,
+    pub column: usize,
+    pub message: String,
+}
+
+/// Loading a scenario failed.
+#[derive(Debug, Error)]
+pub enum LoadError {
+    #[error("cannot read scenario file {file}: {reason}")]
+    Unreadable { file: String, reason: String },
+    #[error(transparent)]
+    Invalid(#[from] ScenarioError),
+}
+
+/// Load and validate a scenario file.
+///
+/// # Errors
+/// When the file cannot be read or is not a valid scenario.
+pub fn load(path: &Path) -> Result<Model, LoadError> {
+    let file = path.display().to_string();
+    let bytes = std::fs::read(path).map_err(|e| LoadError::Unreadable {
+        file: file.clone(),
+        reason: e.to_string(),
+    })?;
+    let text = String::from_utf8(bytes).map_err(|_| LoadError::Unreadable {
+        file: file.clone(),
+        reason: "it is not UTF-8 text".to_string(),
+    })?;
+    Ok(parse(&file, &text)?)
+}
+
+/// Load a scenario file, or the embedded demo when `path` is `None`.
+///
+/// # Errors
+/// As [`load`].
+pub fn load_or_demo(path: Option<&Path>) -> Result<(Model, String), LoadError> {
+    match path {
+        Some(p) => load(p).map(|m| (m, p.display().to_string())),
+        None => Ok((parse(DEMO_FILE, DEMO)?, DEMO_FILE.to_string())),
+    }
+}
+
+/// Parse and validate scenario text; `file` names it in errors.
+///
+/// # Errors
+/// When the text is not a valid scenario.
+pub fn parse(file: &str, text: &str) -> Result<Model, ScenarioError> {
+    let src = Source { file, text };
+    let doc = DeTable::parse(text).map_err(|e| {
+        let span = e.span().unwrap_or(0..0);
+        let msg = e.message().trim().to_string();
+        src.error("", span, format!("TOML syntax error: {msg}"))
+    })?;
+    let root = Tbl::root(src, &doc);
+    read_model(&root)
+}
+
+const ROOT_KEYS: &[&str] = &[
+    "scenario", "defaults", "parts", "units", "fleet", "policies", "search",
+];
+
+fn dist_err(v: &Val<'_, '_>, e: DistError) -> ScenarioError {
+    v.error(e.to_string())
+}
+
+struct Defaults {
+    holding: Option<HoldingSpec>,
+    lead_time: Option<LeadTime>,
+}
+
+#[derive(Clone, Copy)]
+enum HoldingSpec {
+    PerHour(f64),
+    Fraction { fraction: f64, per_hours: f64 },
+}
+
+impl HoldingSpec {
+    fn per_spare_hour(self, price: f64) -> f64 {
+        match self {
+            HoldingSpec::PerHour(r) => r,
+            HoldingSpec::Fraction {
+                fraction,
+                per_hours,
+            } => fraction * price / per_hours,
+        }
+    }
+}
+
+fn read_holding(v: Val<'_, '_>) -> Result<HoldingSpec, ScenarioError> {
+    let t = v.table()?;
+    let out = if t.has("per_spare_hour") {
+        HoldingSpec::PerHour(t.need("per_spare_hour", "cost per spare per hour", |v| {
+            v.non_negative()
+        })?)
+    } else {
+        let fraction = t.need(
+            "fraction_of_price",
+            "e.g. 0.2 (with per_hours = 6000: 20 % of price per 6 000 h), or give per_spare_hour",
+            |v| v.non_negative(),
+        )?;
+        let per_hours = t.need(
+            "per_hours",
+            "hours the fraction is quoted for, e.g. 8760",
+            |v| v.positive(),
+        )?;
+        HoldingSpec::Fraction {
+            fraction,
+            per_hours,
+        }
+    };
+    t.finish(&["per_spare_hour", "fraction_of_price", "per_hours"])?;
+    Ok(out)
+}
+
+fn read_lead(v: Val<'_, '_>) -> Result<LeadTime, ScenarioError> {
+    let t = v.table()?;
+    let kind = t.need("dist", "one of fixed, lognormal, gamma", |v| {
+        v.one_of(&["fixed", "lognormal", "gamma"])
+    })?;
+    let out = match kind {
+        "fixed" => {
+            let h = t.need("hours", "the lead time in hours", |v| v.non_negative())?;
+            t.finish(&["dist", "hours"])?;
+            LeadTime::fixed(h)
+        }
+        "lognormal" => {
+            let m = t.need("median_hours", "the median lead time in hours", |v| {
+                v.positive()
+            })?;
+            let s = t.need(
+                "log_sd",
+                "the standard deviation of ln(lead time), e.g. 0.4",
+                |v| v.non_negative(),
+            )?;
+            t.finish(&["dist", "median_hours", "log_sd"])?;
+            LeadTime::lognormal(m, s)
+        }
+        _ => {
+            let m = t.need("mean_hours", "the mean lead time in hours", |v| {
+                v.positive()
+            })?;
+            let cv = t.need("cv", "coefficient of variation, e.g. 0.5", |v| v.positive())?;
+            t.finish(&["dist", "mean_hours", "cv"])?;
+            LeadTime::gamma(m, cv)
+        }
+    };
+    out.map_err(|e| dist_err(&v, e))
+}
+
+fn read_life(v: Val<'_, '_>) -> Result<Life, ScenarioError> {
+    let t = v.table()?;
+    let kind = t.need(
+        "dist",
+        "one of weibull, lognormal, gamma, exponential",
+        |v| v.one_of(&["weibull", "lognormal", "gamma", "exponential"]),
+    )?;
+    let life = match kind {
+        "weibull" => {
+            let shape = t.need("shape", "the Weibull shape (beta), e.g. 2.2", |v| {
+                v.positive()
+            })?;
+            let location = t.with("location", |v| v.non_negative())?.unwrap_or(0.0);
+            let scale = t.with("scale", |v| v.positive())?;
+            let mean = t.with("mean", |v| v.positive())?;
+            t.finish(&["dist", "shape", "scale", "mean", "location"])?;
+            match (scale, mean) {
+                (Some(s), None) => Life::weibull3(shape, s, location),
+                (None, Some(m)) => {
+                    if m <= location {
+                        return Err(t.error("the mean life must be greater than the location"));
+                    }
+                    Life::weibull_from_mean(shape, m, location)
+                }
+                _ => {
+                    return Err(t.error(
+                        "give exactly one of `scale` (characteristic life, hours) or `mean` (mean life / MTBF, hours)",
+                    ));
+                }
+            }
+        }
+        "lognormal" => {
+            let mu = t.with("mu", |v| v.finite())?;
+            let median = t.with("median_hours", |v| v.positive())?;
+            let sigma = t.need("sigma", "standard deviation of ln(life)", |v| v.positive())?;
+            t.finish(&["dist", "mu", "median_hours", "sigma"])?;
+            match (mu, median) {
+                (Some(mu), None) => Life::lognormal(mu, sigma),
+                (None, Some(m)) => Life::lognormal(m.ln(), sigma),
+                _ => {
+                    return Err(
+                        t.error("give exactly one of `mu` (mean of ln(life)) or `median_hours`")
+                    );
+                }
+            }
+        }
+        "gamma" => {
+            let shape = t.need("shape", "the gamma shape k", |v| v.positive())?;
+            let scale = t.with("scale", |v| v.positive())?;
+            let mean = t.with("mean", |v| v.positive())?;
+            t.finish(&["dist", "shape", "scale", "mean"])?;
+            match (scale, mean) {
+                (Some(s), None) => Life::gamma(shape, s),
+                (None, Some(m)) => Life::gamma(shape, m / shape),
+                _ => return Err(t.error("give exactly one of `scale` or `mean` (hours)")),
+            }
+        }
+        _ => {
+            let mean = t.need("mean", "the mean life (MTBF), hours", |v| v.positive())?;
+            t.finish(&["dist", "mean"])?;
+            Life::exponential(mean)
+        }
+    };
+    life.map_err(|e| dist_err(&v, e))
+}
+
+fn read_pair(v: Val<'_, '_>, what: &str, positive: bool) -> Result<(f64, f64), ScenarioError> {
+    let t = v.table()?;
+    let get = |v: Val<'_, '_>| {
+        if positive {
+            v.positive()
+        } else {
+            v.non_negative()
+        }
+    };
+    let p = t.need("planned", what, get)?;
+    let u = t.need("unplanned", what, get)?;
+    t.finish(&["planned", "unplanned"])?;
+    Ok((p, u))
+}
+
+fn read_part(name: &str, v: Val<'_, '_>, defaults: &Defaults) -> Result<PartType, ScenarioError> {
+    let t = v.table()?;
+    let life = t.need(
+        "life",
+        "the life distribution, e.g. { dist = \"weibull\", shape = 2.2, scale = 14000 }",
+        read_life,
+    )?;
+    let price = t.need("price", "price of one spare", |v| v.non_negative())?;
+    let (labour_planned, labour_unplanned) = t.need(
+        "labour",
+        "labour cost per replacement: { planned = .., unplanned = .. }",
+        |v| read_pair(v, "labour cost (at least 0)", false),
+    )?;
+    let (duration_planned, duration_unplanned) = t.need(
+        "duration_hours",
+        "hours the unit is down per replacement: { planned = .., unplanned = .. }",
+        |v| read_pair(v, "hours (at least 0)", false),
+    )?;
+    let lead_time = match t.with("lead_time", read_lead)? {
+        Some(l) => l,
+        None => defaults.lead_time.ok_or_else(|| {
+            t.error("missing field `lead_time` (and no [defaults] lead_time): e.g. { dist = \"lognormal\", median_hours = 600, log_sd = 0.4 }")
+        })?,
+    };
+    let holding = match t.with("holding", read_holding)? {
+        Some(h) => h,
+        None => defaults.holding.ok_or_else(|| {
+            t.error("missing field `holding` (and no [defaults] holding): e.g. { fraction_of_price = 0.2, per_hours = 8760 }")
+        })?,
+    };
+    let hard_limit = t.with("hard_limit_hours", |v| v.positive())?;
+    let safety = t.with("safety_critical", |v| match v.value {
+        toml::de::DeValue::Boolean(b) => Ok(*b),
+        _ => Err(v.error("expected true or false")),
+    })?;
+    if safety == Some(true) && hard_limit.is_none() {
+        return Err(t.error(
+            "a safety-critical part needs `hard_limit_hours`: the age (hours) it may never be kept past",
+        ));
+    }
+    t.finish(&[
+        "life",
+        "price",
+        "labour",
+        "duration_hours",
+        "lead_time",
+        "holding",
+        "hard_limit_hours",
+        "safety_critical",
+    ])?;
+    Ok(PartType {
+        name: name.to_string(),
+        life,
+        price,
+        labour_planned,
+        labour_unplanned,
+        duration_planned,
+        duration_unplanned,
+        lead_time,
+        holding_per_hour: holding.per_spare_hour(price),
+        hard_limit,
+    })
+}
+
+fn check_name(v: &Val<'_, '_>, name: &str) -> Result<(), ScenarioError> {
+    if !name.is_empty()
+        && name
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-')
+    {
+        Ok(())
+    } else {
+        Err(v.error(format!(
+            "`{name}` is not a valid name; allowed: letters, digits, `_` and `-`"
+        )))
+    }
+}
+
+/// An initial-age spec, with fractions of each part's characteristic life
+/// resolved per part type.
+enum AgeSpec {
+    New,
+    Fixed(Hours),
+    UniformHours(Hours, Hours),
+    UniformFraction(f64, f64),
+    List(Vec<Hours>),
+}
+
+fn read_age(v: Val<'_, '_>) -> Result<AgeSpec, ScenarioError> {
+    if let toml::de::DeValue::String(_) = v.value {
+        v.one_of(&["new"])?;
+        return Ok(AgeSpec::New);
+    }
+    let t = v.table()?;
+    let kind = t.need("kind", "one of new, fixed, uniform, list", |v| {
+        v.one_of(&["new", "fixed", "uniform", "list"])
+    })?;
+    let out = match kind {
+        "new" => {
+            t.finish(&["kind"])?;
+            AgeSpec::New
+        }
+        "fixed" => {
+            let h = t.need("hours", "the age in hours", |v| v.non_negative())?;
+            t.finish(&["kind", "hours"])?;
+            AgeSpec::Fixed(h)
+        }
+        "uniform" => {
+            let lh = t.with("low_hours", |v| v.non_negative())?;
+            let hh = t.with("high_hours", |v| v.non_negative())?;
+            let lf = t.with("low_fraction", |v| v.non_negative())?;
+            let hf = t.with("high_fraction", |v| v.non_negative())?;
+            t.finish(&[
+                "kind",
+                "low_hours",
+                "high_hours",
+                "low_fraction",
+                "high_fraction",
+            ])?;
+            match (lh, hh, lf, hf) {
+                (Some(a), Some(b), None, None) if a <= b => AgeSpec::UniformHours(a, b),
+                (None, None, Some(a), Some(b)) if a <= b => AgeSpec::UniformFraction(a, b),
+                _ => {
+                    return Err(t.error(
+                        "give `low_hours` and `high_hours`, or `low_fraction` and `high_fraction` (of each part's characteristic life), with low <= high",
+                    ));
+                }
+            }
+        }
+        _ => {
+            let hours = t.need("hours", "one age (hours) per unit of the group", |v| {
+                each(&v, |x| x.non_negative())
+            })?;
+            t.finish(&["kind", "hours"])?;
+            AgeSpec::List(hours)
+        }
+    };
+    Ok(out)
+}
+
+fn resolve_age(spec: &AgeSpec, part: &PartType) -> InitialAge {
+    let c = part.life.characteristic_life();
+    match spec {
+        AgeSpec::New => InitialAge::New,
+        AgeSpec::Fixed(h) => InitialAge::Fixed(*h),
+        AgeSpec::UniformHours(a, b) => InitialAge::Uniform { low: *a, high: *b },
+        AgeSpec::UniformFraction(a, b) => InitialAge::Uniform {
+            low: a * c,
+            high: b * c,
+        },
+        AgeSpec::List(v) => InitialAge::List(v.clone()),
+    }
+}
+
+fn read_rule(t: &Tbl<'_, '_>, part: &PartType) -> Result<Rule, ScenarioError> {
+    let kind = t.need("rule", "one of run_to_failure, age, block", |v| {
+        v.one_of(&["run_to_failure", "age", "block"])
+    })?;
+    let hours = t.with("interval_hours", |v| v.positive())?;
+    let frac = t.with("interval_fraction", |v| v.positive())?;
+    let interval = match (hours, frac) {
+        (Some(h), None) => Some(h),
+        (None, Some(f)) => Some(f * part.life.characteristic_life()),
+        (None, None) => None,
+        _ => return Err(t.error("give only one of `interval_hours` and `interval_fraction`")),
+    };
+    match (kind, interval) {
+        ("run_to_failure", None) => Ok(Rule::RunToFailure),
+        ("run_to_failure", Some(_)) => Err(t.error(
+            "run_to_failure takes no interval; remove `interval_hours`/`interval_fraction` or use rule = \"age\"",
+        )),
+        (_, None) => Err(t.error(format!(
+            "rule `{kind}` needs `interval_hours` (hours) or `interval_fraction` (of the part's characteristic life)"
+        ))),
+        ("age", Some(x)) => Ok(Rule::Age(x)),
+        (_, Some(x)) => Ok(Rule::Block(x)),
+    }
+}
+
+fn read_policy(name: &str, v: Val<'_, '_>, parts: &[PartType]) -> Result<Policy, ScenarioError> {
+    let t = v.table()?;
+    let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
+    let mut out: Vec<Option<PartPolicy>> = vec![None; parts.len()];
+    t.entries(|key, v| {
+        let Some(pid) = parts.iter().position(|p| p.name == key) else {
+            let hint = suggest(key, names.iter().copied())
+                .map(|c| format!(" (did you mean `{c}`?)"))
+                .unwrap_or_default();
+            return Err(v.error(format!(
+                "policy names part type `{key}`, which the scenario does not define{hint}; part types: {}",
+                names.join(", ")
+            )));
+        };
+        let pt = v.table()?;
+        let rule = read_rule(&pt, &parts[pid])?;
+        let stock = pt.need("stock", "base-stock level S (a whole number, 0 or more)", |v| {
+            v.integer(0, 100_000)
+        })? as u32;
+        pt.finish(&["rule", "interval_hours", "interval_fraction", "stock"])?;
+        out[pid] = Some(PartPolicy { rule, stock });
+        Ok(())
+    })?;
+    let mut parts_out = Vec::with_capacity(parts.len());
+    for (i, p) in out.into_iter().enumerate() {
+        match p {
+            Some(p) => parts_out.push(p),
+            None => {
+                return Err(t.error(format!(
+                    "policy `{name}` leaves out part type `{}`; every part type needs a rule and a stock level",
+                    parts[i].name
+                )));
+            }
+        }
+    }
+    Ok(Policy {
+        name: name.to_string(),
+        parts: parts_out,
+    })
+}
+
+fn read_intervals(t: &Tbl<'_, '_>, part: &PartType) -> Result<Option<Vec<Hours>>, ScenarioError> {
+    let c = part.life.characteristic_life();
+    let range = |v: Val<'_, '_>| -> Result<Vec<f64>, ScenarioError> {
+        let r = v.table()?;
+        let from = r.need("from", "first value", |v| v.positive())?;
+        let to = r.need("to", "last value", |v| v.positive())?;
+        let step = r.need("step", "step between values", |v| v.positive())?;
+        r.finish(&["from", "to", "step"])?;
+        if to < from {
+            return Err(r.error("`to` must be at least `from`"));
+        }
+        let n = ((to - from) / step + 1e-9).floor() as usize + 1;
+        if n > 1000 {
+            return Err(r.error(format!(
+                "this range has {n} values; at most 1000 are allowed"
+            )));
+        }
+        Ok((0..n).map(|i| from + i as f64 * step).collect())
+    };
+    let list = |v: Val<'_, '_>| each(&v, |x| x.positive());
+    let mut found: Vec<Vec<Hours>> = Vec::new();
+    if let Some(v) = t.with("interval_hours", list)? {
+        found.push(v);
+    }
+    if let Some(v) = t.with("interval_fractions", list)? {
+        found.push(v.iter().map(|f| f * c).collect());
+    }
+    if let Some(v) = t.with("interval_hours_range", range)? {
+        found.push(v);
+    }
+    if let Some(v) = t.with("interval_fraction_range", range)? {
+        found.push(v.iter().map(|f| f * c).collect());
+    }
+    match found.len() {
+        0 => Ok(None),
+        1 => Ok(found.pop()),
+        _ => Err(t.error(
+            "give only one of interval_hours, interval_fractions, interval_hours_range, interval_fraction_range",
+        )),
+    }
+}
+
+const SEARCH_PART_KEYS: &[&str] = &[
+    "rules",
+    "interval_hours",
+    "interval_fractions",
+    "interval_hours_range",
+    "interval_fraction_range",
+    "stock",
+];
+
+fn read_part_search(
+    t: &Tbl<'_, '_>,
+    part: &PartType,
+    fallback: Option<&Tbl<'_, '_>>,
+) -> Result<PartSearch, ScenarioError> {
+    // A key missing from the part's table comes from [search.every_part].
+    let pick = |key: &str| -> Option<&Tbl<'_, '_>> {
+        if t.has(key) {
+            Some(t)
+        } else {
+            fallback.filter(|f| f.has(key))
+        }
+    };
+    let rules_tbl = pick("rules").unwrap_or(t);
+    let kinds = rules_tbl
+        .with("rules", |v| {
+            each(&v, |x| {
+                x.one_of(&["run_to_failure", "age", "block"])
+                    .map(str::to_string)
+            })
+        })?
+        .unwrap_or_else(|| vec!["run_to_failure".to_string()]);
+    let iv_tbl = [
+        "interval_hours",
+        "interval_fractions",
+        "interval_hours_range",
+        "interval_fraction_range",
+    ]
+    .iter()
+    .find_map(|k| pick(k))
+    .unwrap_or(t);
+    let intervals = read_intervals(iv_tbl, part)?;
+    let stock_tbl = pick("stock").unwrap_or(t);
+    let (smin, smax) = stock_tbl
+        .with("stock", |v| {
+            let s = v.table()?;
+            let a = s.need("min", "smallest stock level", |v| v.integer(0, 10_000))? as u32;
+            let b = s.need("max", "largest stock level", |v| v.integer(0, 10_000))? as u32;
+            s.finish(&["min", "max"])?;
+            if b < a {
+                return Err(s.error("`max` must be at least `min`"));
+            }
+            Ok((a, b))
+        })?
+        .unwrap_or((0, 0));
+    let mut rules = Vec::new();
+    let mut seen = std::collections::HashSet::new();
+    for k in &kinds {
+        if !seen.insert(k.clone()) {
+            continue;
+        }
+        match k.as_str() {
+            "run_to_failure" => rules.push(Rule::RunToFailure),
+            kind => {
+                let Some(iv) = &intervals else {
+                    return Err(t.error(format!(
+                        "rule `{kind}` in the search needs intervals: interval_hours, interval_fractions or a range"
+                    )));
+                };
+                for &x in iv {
+                    rules.push(if kind == "age" {
+                        Rule::Age(x)
+                    } else {
+                        Rule::Block(x)
+                    });
+                }
+            }
+        }
+    }
+    // Safety-critical parts: never run to failure, never past the hard limit.
+    if let Some(limit) = part.hard_limit {
+        rules.retain(|r| matches!(r.interval(), Some(x) if x <= limit * (1.0 + 1e-12)));
+        if rules.is_empty() {
+            return Err(t.error(format!(
+                "part type `{}` is safety-critical (hard limit {limit} h): the search space leaves it no allowed rule; give age or block intervals at or below the limit",
+                part.name
+            )));
+        }
+    }
+    Ok(PartSearch {
+        rules,
+        stock_min: smin,
+        stock_max: smax,
+    })
+}
+
+fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, ScenarioError> {
+    let t = v.table()?;
+    let basis = t
+        .with("cost", |v| v.one_of(&["spend", "total"]))?
+        .map(|s| {
+            if s == "spend" {
+                CostBasis::Spend
+            } else {
+                CostBasis::TotalWithPenalty
+            }
+        })
+        .unwrap_or(CostBasis::Spend);
+    let statistic = t
+        .with("statistic", |v| {
+            let s = v.string()?;
+            if s == "mean" {
+                return Ok(CostStatistic::Mean);
+            }
+            match s.strip_prefix('p').and_then(|n| n.parse::<f64>().ok()) {
+                Some(p) if p > 0.0 && p < 100.0 => Ok(CostStatistic::Percentile(p)),
+                _ => Err(v.error(format!(
+                    "`{s}` is not a statistic; allowed: mean, or a percentile such as p90"
+                ))),
+            }
+        })?
+        .unwrap_or(CostStatistic::Mean);
+    let spares_budget = t.with("spares_budget", |v| v.positive())?;
+    let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
+    // [search.every_part] fills in what a part's own table leaves out.
+    let every_raw = t.with("every_part", |v| Ok((v.value.clone(), v.span)))?;
+    let every_path = t.child_path("every_part");
+    let every_val = every_raw.as_ref().map(|(value, span)| Val {
+        src: t.src,
+        path: &every_path,
+        span: *span,
+        value,
+    });
+    let every_tbl = match &every_val {
+        Some(v) => {
+            let e = v.table()?;
+            for k in SEARCH_PART_KEYS {
+                e.with(k, |_| Ok(()))?;
+            }
+            e.finish(SEARCH_PART_KEYS)?;
+            Some(e)
+        }
+        None => None,
+    };
+    let mut per_part: Vec<Option<PartSearch>> = vec![None; parts.len()];
+    t.with("parts", |v| {
+        let pt = v.table()?;
+        pt.entries(|key, v| {
+            let Some(pid) = parts.iter().position(|p| p.name == key) else {
+                let hint = suggest(key, names.iter().copied())
+                    .map(|c| format!(" (did you mean `{c}`?)"))
+                    .unwrap_or_default();
+                return Err(v.error(format!(
+                    "the search names part type `{key}`, which the scenario does not define{hint}"
+                )));
+            };
+            let tb = v.table()?;
+            let ps = read_part_search(&tb, &parts[pid], every_tbl.as_ref())?;
+            tb.finish(SEARCH_PART_KEYS)?;
+            per_part[pid] = Some(ps);
+            Ok(())
+        })?;
+        Ok(())
+    })?;
+    let mut out = Vec::with_capacity(parts.len());
+    for (i, ps) in per_part.into_iter().enumerate() {
+        match ps {
+            Some(ps) => out.push(ps),
+            None => match &every_tbl {
+                Some(e) => out.push(read_part_search(e, &parts[i], None)?),
+                None => {
+                    return Err(t.error(format!(
+                        "the search does not say what to try for part type `{}`: add [search.parts.{}] or [search.every_part]",
+                        parts[i].name, parts[i].name
+                    )));
+                }
+            },
+        }
+    }
+    t.finish(&["cost", "statistic", "spares_budget", "every_part", "parts"])?;
+    Ok(SearchSpace {
+        parts: out,
+        spares_budget,
+        cost: CostMeasure { basis, statistic },
+    })
+}
+
+fn read_model(root: &Tbl<'_, '_>) -> Result<Model, ScenarioError> {
+    let sc = root.need("scenario", "the [scenario] table with name, horizon_hours, ...", |v| {
+        let t = v.table()?;
+        let name = t.need("name", "a short name, e.g. \"quarry\"", |v| {
+            let s = v.string()?;
+            check_name(&v, s)?;
+            Ok(s.to_string())
+        })?;
+        let description = t.with("description", |v| v.string().map(str::to_string))?.unwrap_or_default();
+        let horizon = t.need("horizon_hours", "the planning horizon in operating hours (> 0)", |v| {
+            let h = v.positive()?;
+            if h > 1e9 {
+                return Err(v.error(format!(
+                    "a horizon of {h} h is beyond what can be simulated (about 114 000 years); allowed: up to 1e9 hours"
+                )));
+            }
+            Ok(h)
+        })?;
+        let penalty = t.need("downtime_penalty_per_hour", "cost per unit-hour down (0 or more)", |v| v.non_negative())?;
+        let target = t.need("target_availability", "the availability target A*, in (0, 1]", |v| {
+            let x = v.number()?;
+            if x > 0.0 && x <= 1.0 {
+                Ok(x)
+            } else {
+                Err(v.error(format!("must be in (0, 1], e.g. 0.92 (got {x})")))
+            }
+        })?;
+        let seed = t.with("seed", |v| v.integer(0, u64::MAX as i128))?.unwrap_or(1) as u64;
+        let trials = t.with("trials", |v| v.integer(1, 1_000_000_000))?.unwrap_or(2000) as u64;
+        let currency = t.with("currency", |v| v.string().map(str::to_string))?.unwrap_or_default();
+        t.finish(&[
+            "name",
+            "description",
+            "horizon_hours",
+            "downtime_penalty_per_hour",
+            "target_availability",
+            "seed",
+            "trials",
+            "currency",
+        ])?;
+        Ok((name, description, horizon, penalty, target, seed, trials, currency))
+    })?;
+    let (name, description, horizon, downtime_penalty, target, seed, trials, currency) = sc;
+
+    let mut age_default: Option<AgeSpec> = None;
+    let defaults = root
+        .with("defaults", |v| {
+            let t = v.table()?;
+            let holding = t.with("holding", read_holding)?;
+            let lead_time = t.with("lead_time", read_lead)?;
+            age_default = t.with("initial_age", read_age)?;
+            t.finish(&["holding", "lead_time", "initial_age"])?;
+            Ok(Defaults { holding, lead_time })
+        })?
+        .unwrap_or(Defaults {
+            holding: None,
+            lead_time: None,
+        });
+
+    let parts: Vec<PartType> = root.need("parts", "at least one [parts.NAME] table", |v| {
+        let t = v.table()?;
+        let parts = t.entries(|key, v| {
+            check_name(&v, key)?;
+            read_part(key, v, &defaults)
+        })?;
+        if parts.is_empty() {
+            return Err(v.error("define at least one part type as [parts.NAME]"));
+        }
+        Ok(parts)
+    })?;
+    let part_names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
+
+    let unit_types: Vec<UnitType> = root.need("units", "at least one [units.NAME] table with positions", |v| {
+        let t = v.table()?;
+        let out = t.entries(|key, v| {
+            check_name(&v, key)?;
+            let ut = v.table()?;
+            let mut counts = std::collections::HashMap::<String, usize>::new();
+            let positions = ut.need("positions", "a list of part types, e.g. [\"engine\", \"pump\", \"pump\"]", |v| {
+                let ps = each(&v, |x| {
+                    let (pname, part) = if x.is_table() {
+                        let pt = x.table()?;
+                        let n = pt.need("name", "the position's name", |v| v.string().map(str::to_string))?;
+                        let p = pt.need("part", "the part type it holds", |v| v.string().map(str::to_string))?;
+                        pt.finish(&["name", "part"])?;
+                        (Some(n), p)
+                    } else {
+                        (None, x.string()?.to_string())
+                    };
+                    let Some(pid) = parts.iter().position(|p| p.name == part) else {
+                        let hint = suggest(&part, part_names.iter().copied())
+                            .map(|c| format!(" (did you mean `{c}`?)"))
+                            .unwrap_or_default();
+                        return Err(x.error(format!(
+                            "position names part type `{part}`, which is not defined{hint}; part types: {}",
+                            part_names.join(", ")
+                        )));
+                    };
+                    let c = counts.entry(part.clone()).or_insert(0);
+                    *c += 1;
+                    let name = pname.unwrap_or_else(|| if *c == 1 { part.clone() } else { format!("{part}#{c}") });
+                    Ok(Position { name, part: pid })
+                })?;
+                if ps.is_empty() {
+                    return Err(v.error("a unit type needs at least one position"));
+                }
+                if ps.len() > 65_000 {
+                    return Err(v.error("at most 65 000 positions per unit type"));
+                }
+                Ok(ps)
+            })?;
+            ut.finish(&["positions"])?;
+            Ok(UnitType { name: key.to_string(), positions })
+        })?;
+        if out.is_empty() {
+            return Err(v.error("define at least one unit type as [units.NAME]"));
+        }
+        Ok(out)
+    })?;
+    let unit_names: Vec<&str> = unit_types.iter().map(|u| u.name.as_str()).collect();
+
+    let groups: Vec<FleetGroup> = root.need(
+        "fleet",
+        "one or more [[fleet]] entries with unit and count",
+        |v| {
+            let gs = each(&v, |x| {
+                let t = x.table()?;
+                let unit = t.need("unit", "the unit type", |v| {
+                    let s = v.string()?;
+                    unit_types.iter().position(|u| u.name == s).ok_or_else(|| {
+                        let hint = suggest(s, unit_names.iter().copied())
+                            .map(|c| format!(" (did you mean `{c}`?)"))
+                            .unwrap_or_default();
+                        v.error(format!(
+                            "unit type `{s}` is not defined{hint}; unit types: {}",
+                            unit_names.join(", ")
+                        ))
+                    })
+                })?;
+                let count = t.need("count", "how many units of this type (1 or more)", |v| {
+                    v.integer(1, 1_000_000)
+                })? as usize;
+                let age = t.with("initial_age", read_age)?;
+                let mut by_part: Vec<(usize, AgeSpec)> = Vec::new();
+                t.with("initial_age_by_part", |v| {
+                    let bt = v.table()?;
+                    bt.entries(|key, v| {
+                        let Some(pid) = parts.iter().position(|p| p.name == key) else {
+                            return Err(v.error(format!(
+                                "part type `{key}` is not defined; part types: {}",
+                                part_names.join(", ")
+                            )));
+                        };
+                        by_part.push((pid, read_age(v)?));
+                        Ok(())
+                    })?;
+                    Ok(())
+                })?;
+                t.finish(&["unit", "count", "initial_age", "initial_age_by_part"])?;
+                let mut initial_age = Vec::with_capacity(parts.len());
+                for (pid, part) in parts.iter().enumerate() {
+                    let spec = by_part
+                        .iter()
+                        .find(|(p, _)| *p == pid)
+                        .map(|(_, s)| s)
+                        .or(age.as_ref())
+                        .or(age_default.as_ref())
+                        .unwrap_or(&AgeSpec::New);
+                    if let AgeSpec::List(l) = spec
+                        && l.len() != count
+                    {
+                        return Err(t.error(format!(
+                        "an initial-age list needs one age per unit: {} given for {count} units",
+                        l.len()
+                    )));
+                    }
+                    initial_age.push(resolve_age(spec, part));
+                }
+                Ok(FleetGroup {
+                    unit_type: unit,
+                    count,
+                    initial_age,
+                })
+            })?;
+            if gs.is_empty() {
+                return Err(v.error("the fleet needs at least one [[fleet]] entry"));
+            }
+            let total: usize = gs.iter().map(|g| g.count).sum();
+            if total > 1_000_000 {
+                return Err(v.error(format!(
+                    "the fleet has {total} units; at most 1 000 000 are allowed"
+                )));
+            }
+            Ok(gs)
+        },
+    )?;
+
+    let policies = root
+        .with("policies", |v| {
+            let t = v.table()?;
+            t.entries(|key, v| {
+                check_name(&v, key)?;
+                let p = read_policy(key, v, &parts)?;
+                Ok((p, v.span))
+            })
+        })?
+        .unwrap_or_default();
+    let search = root.with("search", |v| read_search(v, &parts))?;
+    root.finish(ROOT_KEYS)?;
+
+    let units = Model::flatten_units(&unit_types, &groups);
+    let model = Model {
+        name,
+        description,
+        horizon,
+        downtime_penalty,
+        target,
+        seed,
+        trials,
+        parts,
+        unit_types,
+        groups,
+        units,
+        policies: policies.iter().map(|(p, _)| p.clone()).collect(),
+        search,
+        currency,
+    };
+    for (p, span) in &policies {
+        if let Some(msg) = model.safety_violation(p) {
+            return Err(root
+                .src
+                .error(&format!("policies.{}", p.name), span.0..span.1, msg));
+        }
+    }
+    Ok(model)
+}

@@ -1,0 +1,291 @@
+//! Bad input never panics: every mistake a user can make in a scenario file
+//! or on the command line gives one clear message naming the file, the field
+//! path and what is allowed, and exit status 2.
+
+use std::path::PathBuf;
+use std::process::Command;
+
+fn scenario(name: &str) -> String {
+    let path = format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"));
+    std::fs::read_to_string(path).expect("shipped scenario")
+}
+
+fn write_temp(tag: &str, text: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("wearout-cli-errors-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    let p = dir.join(format!("{tag}.toml"));
+    std::fs::write(&p, text).expect("write temp scenario");
+    p
+}
+
+/// Run the binary; return (exit code, stderr).
+fn wearout(args: &[&str]) -> (i32, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_wearout"))
+        .args(args)
+        .env_remove("RUST_BACKTRACE")
+        .output()
+        .expect("run wearout");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stderr).to_string(),
+    )
+}
+
+/// Check one broken scenario: exit 2, one message with all `needles`.
+fn refuses(tag: &str, text: &str, needles: &[&str]) {
+    let p = write_temp(tag, text);
+    let (code, err) = wearout(&["check", p.to_str().unwrap()]);
+    assert_eq!(code, 2, "{tag}: exit code {code}, stderr: {err}");
+    assert!(
+        !err.contains("panicked") && !err.contains("backtrace"),
+        "{tag}: {err}"
+    );
+    assert!(
+        err.contains(&format!("{tag}.toml")),
+        "{tag}: no file name in {err}"
+    );
+    for n in needles {
+        assert!(err.contains(n), "{tag}: `{n}` not in: {err}");
+    }
+    assert_eq!(
+        err.trim().lines().count(),
+        1,
+        "{tag}: one message, got {err}"
+    );
+}
+
+fn b0_with(from: &str, to: &str) -> String {
+    let s = scenario("b0");
+    assert!(s.contains(from), "fixture text `{from}` not in b0.toml");
+    s.replacen(from, to, 1)
+}
+
+#[test]
+fn missing_file() {
+    let (code, err) = wearout(&["check", "/nonexistent/fleet.toml"]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("/nonexistent/fleet.toml") && err.contains("cannot read"),
+        "{err}"
+    );
+}
+
+#[test]
+fn toml_syntax_error_gives_line_and_column() {
+    refuses(
+        "syntax",
+        "[scenario]\nname = \"x\"\nhorizon_hours = = 5\n",
+        &["syntax.toml:3:", "TOML syntax error"],
+    );
+}
+
+#[test]
+fn unknown_key_with_suggestion() {
+    refuses(
+        "unknown",
+        &b0_with("seed = 20261202", "sead = 20261202"),
+        &["scenario.sead", "did you mean `seed`?"],
+    );
+    refuses(
+        "misspelt",
+        &b0_with("horizon_hours = 20000", "horizon_hour = 20000"),
+        &[
+            "scenario.horizon_hour",
+            "did you mean `horizon_hours`?",
+            ":7:1:",
+        ],
+    );
+    refuses(
+        "unknown_part_key",
+        &b0_with("price = 6000", "price = 6000\ncolour = \"red\""),
+        &["parts.pump.colour", "allowed here"],
+    );
+}
+
+#[test]
+fn wrong_types() {
+    refuses(
+        "wrongtype",
+        &b0_with("price = 6000", "price = \"six thousand\""),
+        &["parts.pump.price", "expected a number, found a string"],
+    );
+    refuses(
+        "wrongtype2",
+        &b0_with("count = 6", "count = 6.5"),
+        &["fleet[0].count", "whole number"],
+    );
+}
+
+#[test]
+fn bad_numbers() {
+    refuses(
+        "negative",
+        &b0_with("price = 6000", "price = -1"),
+        &["parts.pump.price", "at least 0"],
+    );
+    refuses(
+        "zero_shape",
+        &b0_with("shape = 2.5", "shape = 0"),
+        &["parts.engine.life.shape", "greater than 0"],
+    );
+    refuses(
+        "nan_scale",
+        &b0_with("scale = 10000", "scale = nan"),
+        &["parts.engine.life.scale", "NaN"],
+    );
+    refuses(
+        "inf_lead",
+        &b0_with("median_hours = 800", "median_hours = inf"),
+        &["parts.engine.lead_time.median_hours", "finite"],
+    );
+    refuses(
+        "zero_horizon",
+        &b0_with("horizon_hours = 20000", "horizon_hours = 0"),
+        &["scenario.horizon_hours", "greater than 0"],
+    );
+    refuses(
+        "zero_trials",
+        &b0_with("trials = 2000", "trials = 0"),
+        &["scenario.trials", "from 1 to"],
+    );
+}
+
+#[test]
+fn target_outside_unit_interval() {
+    refuses(
+        "target_hi",
+        &b0_with("target_availability = 0.97", "target_availability = 1.2"),
+        &["scenario.target_availability", "(0, 1]"],
+    );
+    refuses(
+        "target_zero",
+        &b0_with("target_availability = 0.97", "target_availability = 0"),
+        &["scenario.target_availability", "(0, 1]"],
+    );
+    let b0 = format!("{}/scenarios/b0.toml", env!("CARGO_MANIFEST_DIR"));
+    let (code, err) = wearout(&["evaluate", &b0, "--target=-0.5", "--trials", "10"]);
+    assert_eq!(code, 2);
+    assert!(err.contains("--target") && err.contains("(0, 1]"), "{err}");
+}
+
+#[test]
+fn zero_trials_on_the_command_line() {
+    let b0 = format!("{}/scenarios/b0.toml", env!("CARGO_MANIFEST_DIR"));
+    let (code, err) = wearout(&["evaluate", &b0, "--trials", "0"]);
+    assert_eq!(code, 2);
+    assert!(err.contains("--trials"), "{err}");
+}
+
+#[test]
+fn position_names_a_missing_part_type() {
+    refuses(
+        "position",
+        &b0_with(
+            "positions = [\"engine\", \"pump\", \"belt\"]",
+            "positions = [\"engine\", \"pmup\", \"belt\"]",
+        ),
+        &[
+            "units.loader.positions[1]",
+            "`pmup`",
+            "did you mean `pump`?",
+        ],
+    );
+}
+
+#[test]
+fn policy_names_a_missing_part_or_leaves_one_out() {
+    refuses(
+        "policy_extra",
+        &b0_with(
+            "belt = { rule = \"age\", interval_fraction = 0.9, stock = 2 }",
+            "belt = { rule = \"age\", interval_fraction = 0.9, stock = 2 }\nbelts = { rule = \"run_to_failure\", stock = 1 }",
+        ),
+        &[
+            "policies.reference.belts",
+            "does not define",
+            "did you mean `belt`?",
+        ],
+    );
+    refuses(
+        "policy_missing",
+        &b0_with(
+            "belt = { rule = \"age\", interval_fraction = 0.9, stock = 2 }",
+            "",
+        ),
+        &["policies.reference", "leaves out part type `belt`"],
+    );
+    let b0 = format!("{}/scenarios/b0.toml", env!("CARGO_MANIFEST_DIR"));
+    let (code, err) = wearout(&["evaluate", &b0, "--policy", "referense", "--trials", "10"]);
+    assert_eq!(code, 2);
+    assert!(err.contains("did you mean `reference`?"), "{err}");
+}
+
+#[test]
+fn safety_critical_part_run_to_failure_or_past_its_limit() {
+    let demo = scenario("demo");
+    let line = "brake_actuator = { rule = \"age\", interval_hours = 8000, stock = 2 }";
+    assert!(demo.contains(line));
+    refuses(
+        "safety_rtf",
+        &demo.replacen(
+            line,
+            "brake_actuator = { rule = \"run_to_failure\", stock = 2 }",
+            1,
+        ),
+        &[
+            "policies.current",
+            "safety-critical",
+            "may not be run to failure",
+        ],
+    );
+    refuses(
+        "safety_limit",
+        &demo.replacen(
+            line,
+            "brake_actuator = { rule = \"block\", interval_hours = 9000, stock = 2 }",
+            1,
+        ),
+        &[
+            "policies.current",
+            "past its hard life limit",
+            "at most 8000 h",
+        ],
+    );
+    refuses(
+        "safety_nolimit",
+        &demo.replacen("hard_limit_hours = 8000\n", "", 1),
+        &["parts.brake_actuator", "hard_limit_hours"],
+    );
+}
+
+#[test]
+fn rule_and_interval_mismatch() {
+    refuses(
+        "rule_noint",
+        &b0_with(
+            "engine = { rule = \"age\", interval_fraction = 0.7, stock = 1 }",
+            "engine = { rule = \"age\", stock = 1 }",
+        ),
+        &["policies.reference.engine", "needs `interval_hours`"],
+    );
+    refuses(
+        "rule_bad",
+        &b0_with(
+            "engine = { rule = \"age\", interval_fraction = 0.7, stock = 1 }",
+            "engine = { rule = \"aeg\", interval_fraction = 0.7, stock = 1 }",
+        ),
+        &["policies.reference.engine.rule", "did you mean `age`?"],
+    );
+}
+
+#[test]
+fn not_utf8_and_empty() {
+    let dir = std::env::temp_dir().join(format!("wearout-cli-bin-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let p = dir.join("binary.toml");
+    std::fs::write(&p, [0xff, 0xfe, 0x00, 0x41]).unwrap();
+    let (code, err) = wearout(&["check", p.to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("UTF-8"), "{err}");
+    refuses("empty", "", &["missing field `scenario`"]);
+}
