@@ -3,9 +3,16 @@
 //! Owns: the types every later stage reads. A value of these types has been
 //! checked (by `scenario`, or by a constructor in tests), so the simulation
 //! never re-checks parameters.
-//! May use: `dist`. Knows nothing of TOML, serde or the command line.
+//! May use: `dist`, `uncertainty`. Knows nothing of TOML, serde or the
+//! command line.
 
 use crate::dist::{Hours, LeadTime, Life};
+use crate::uncertainty::LifeUncertainty;
+
+/// Relative slack when comparing an interval with a hard life limit, so an
+/// interval given as a fraction that rounds a hair above the limit is not
+/// refused.
+pub const LIMIT_SLACK: f64 = 1e-9;
 
 /// Index of a part type in [`Model::parts`].
 pub type PartId = usize;
@@ -35,6 +42,10 @@ pub struct PartType {
     /// Hard life limit for a safety-critical part: never run to failure,
     /// never kept in service past this age.
     pub hard_limit: Option<Hours>,
+    /// The sampling uncertainty of `life` when it was fitted to records
+    /// (`life` is then its point estimate); `None` for a life given as
+    /// parameters. Drawn per trial when [`Model::parameter_uncertainty`] is on.
+    pub life_uncertainty: Option<LifeUncertainty>,
 }
 
 impl PartType {
@@ -254,6 +265,10 @@ pub struct SearchSpace {
     /// Upper bound on the initial stock's capital, if any.
     pub spares_budget: Option<Money>,
     pub cost: CostMeasure,
+    /// Trials the search runs on (default 2000).
+    pub search_trials: u64,
+    /// Fresh trials the frontier is re-costed on (default 10000).
+    pub validate_trials: u64,
 }
 
 impl SearchSpace {
@@ -287,6 +302,11 @@ pub struct Model {
     pub search: Option<SearchSpace>,
     /// The currency label for reports.
     pub currency: String,
+    /// Whether each trial draws its own life parameters for the part types
+    /// with a [`PartType::life_uncertainty`] (from the trial's
+    /// `Parameters` stream, so every policy sees the same draws); when off
+    /// every trial uses the point estimates.
+    pub parameter_uncertainty: bool,
 }
 
 impl Model {
@@ -344,7 +364,7 @@ impl Model {
                             fmt_hours(limit)
                         ));
                     }
-                    Rule::Age(t) | Rule::Block(t) if t > limit => {
+                    Rule::Age(t) | Rule::Block(t) if t > limit * (1.0 + LIMIT_SLACK) => {
                         return Some(format!(
                             "part type `{}` is safety-critical: interval {} h is past its hard life limit of {} h; allowed: an interval of at most {} h",
                             part.name,

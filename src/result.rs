@@ -94,6 +94,8 @@ pub struct EvaluateJson {
     pub target: f64,
     pub horizon_hours: f64,
     pub units: usize,
+    /// Whether each trial drew its own life parameters from their fits.
+    pub parameter_uncertainty: bool,
     pub availability: AvailabilityFigures,
     pub chance: Chance,
     pub cost: CostJson,
@@ -126,6 +128,7 @@ impl EvaluateJson {
             target: s.target,
             horizon_hours: model.horizon,
             units: model.units.len(),
+            parameter_uncertainty: model.parameter_uncertainty,
             availability: s.availability(),
             chance: s.chance(),
             cost: CostJson {
@@ -180,6 +183,164 @@ impl EvaluateJson {
                     },
                 })
                 .collect(),
+        }
+    }
+}
+
+/// One part type's rule in a frontier policy.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct RuleJson {
+    pub rule: String,
+    pub interval: Option<f64>,
+}
+
+/// Availability percentiles of a frontier policy.
+#[derive(Debug, Clone, Copy, Serialize, PartialEq)]
+pub struct AvailabilityPercentiles {
+    pub p10: f64,
+    pub p50: f64,
+    pub p90: f64,
+}
+
+/// Paired comparison with the previous (cheaper) frontier policy.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct NoiseJson {
+    pub chance_within_noise: bool,
+    pub cost_within_noise: bool,
+    pub chance_diff: MeanSe,
+    pub cost_diff: MeanSe,
+}
+
+/// One non-dominated policy, re-costed on the validation trials.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct FrontierPolicyJson {
+    pub name: String,
+    /// Compact human-readable form.
+    pub describe: String,
+    pub rules: std::collections::BTreeMap<String, RuleJson>,
+    pub stock: std::collections::BTreeMap<String, u32>,
+    /// The cost measure over the horizon.
+    pub cost: MeanSe,
+    pub chance: Chance,
+    pub availability: AvailabilityPercentiles,
+    pub availability_mean: f64,
+    pub initial_stock_capital: f64,
+    /// Mean total with the downtime penalty, without capital.
+    pub total_with_penalty: f64,
+    /// Mean spend with capital.
+    pub spend: f64,
+    /// Against the previous row; null for the cheapest.
+    pub versus_previous: Option<NoiseJson>,
+}
+
+/// The result of `wearout frontier`.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct FrontierJson {
+    pub scenario: String,
+    pub policies: Vec<FrontierPolicyJson>,
+    /// Policies simulated in full on the search trials.
+    pub evaluated: usize,
+    pub space_size: f64,
+    pub search_trials: u64,
+    pub validate_trials: u64,
+    /// First validation trial index (search trials start at 0).
+    pub validate_first_trial: u64,
+    pub target: f64,
+    pub seed: u64,
+    /// Whether each trial drew its own life parameters from their fits.
+    pub parameter_uncertainty: bool,
+    /// `spend` or `total`, with `mean` or `pNN`.
+    pub cost_measure: String,
+    pub screening_runs: usize,
+    pub surrogate_scored: usize,
+    pub linear_programs: usize,
+    pub seconds: f64,
+    pub seconds_screening: f64,
+    pub seconds_search: f64,
+    pub seconds_validation: f64,
+    pub exhaustive: bool,
+}
+
+/// A short label of a cost measure: `spend (mean)`.
+pub fn cost_measure_label(m: crate::model::CostMeasure) -> String {
+    let basis = match m.basis {
+        crate::model::CostBasis::Spend => "spend",
+        crate::model::CostBasis::TotalWithPenalty => "total",
+    };
+    match m.statistic {
+        crate::model::CostStatistic::Mean => format!("{basis} (mean)"),
+        crate::model::CostStatistic::Percentile(p) => format!("{basis} (p{p})"),
+    }
+}
+
+impl FrontierJson {
+    /// Build from a frontier result.
+    pub fn new(model: &Model, r: &crate::frontier::FrontierResult, exhaustive: bool) -> Self {
+        let policies = r
+            .points
+            .iter()
+            .map(|pt| {
+                let c = &pt.costed;
+                let a = c.summary.availability();
+                let mut rules = std::collections::BTreeMap::new();
+                let mut stock = std::collections::BTreeMap::new();
+                for (pp, part) in c.policy.parts.iter().zip(&model.parts) {
+                    rules.insert(
+                        part.name.clone(),
+                        RuleJson {
+                            rule: pp.rule.kind().to_string(),
+                            interval: pp.rule.interval(),
+                        },
+                    );
+                    stock.insert(part.name.clone(), pp.stock);
+                }
+                FrontierPolicyJson {
+                    name: c.policy.name.clone(),
+                    describe: c.policy.describe(model),
+                    rules,
+                    stock,
+                    cost: c.cost,
+                    chance: c.chance,
+                    availability: AvailabilityPercentiles {
+                        p10: a.p10,
+                        p50: a.p50,
+                        p90: a.p90,
+                    },
+                    availability_mean: a.mean,
+                    initial_stock_capital: c.summary.initial_stock_capital,
+                    total_with_penalty: c.summary.acc.total.mean(),
+                    spend: c.summary.acc.spend.mean() + c.summary.initial_stock_capital,
+                    versus_previous: pt.noise.map(|n| NoiseJson {
+                        chance_within_noise: n.chance_within_noise,
+                        cost_within_noise: n.cost_within_noise,
+                        chance_diff: n.chance_diff,
+                        cost_diff: n.cost_diff,
+                    }),
+                }
+            })
+            .collect();
+        FrontierJson {
+            scenario: model.name.clone(),
+            policies,
+            evaluated: r.stats.evaluated,
+            space_size: r.space_size as f64,
+            search_trials: r.search_trials,
+            validate_trials: r.validate_trials,
+            validate_first_trial: crate::frontier::VALIDATION_OFFSET,
+            target: r.target,
+            seed: model.seed,
+            parameter_uncertainty: model.parameter_uncertainty,
+            cost_measure: cost_measure_label(r.cost),
+            screening_runs: r.stats.screening_runs,
+            surrogate_scored: r.stats.surrogate_scored,
+            linear_programs: r.stats.lps,
+            seconds: r.stats.seconds_screening
+                + r.stats.seconds_search
+                + r.stats.seconds_validation,
+            seconds_screening: r.stats.seconds_screening,
+            seconds_search: r.stats.seconds_search,
+            seconds_validation: r.stats.seconds_validation,
+            exhaustive,
         }
     }
 }

@@ -17,6 +17,8 @@ use crate::summary::{Accumulator, Summary};
 /// Receives progress from long runs. The core never prints; the command
 /// line supplies a progress bar, tests supply nothing.
 pub trait Progress: Sync {
+    /// A new phase of `total` trials begins (e.g. "screening").
+    fn phase(&self, _name: &str, _total: u64) {}
     /// `n` more trials are done.
     fn advance(&self, _n: u64) {}
     /// Whether the run should stop early (e.g. after Ctrl-C).
@@ -76,4 +78,23 @@ pub fn evaluate(
         return None;
     }
     Some(Summary::new(model, policy, first, acc, target))
+}
+
+/// Evaluate `policy` on trials `range` on the calling thread, reusing `ws`
+/// (for callers that parallelise over policies instead of trials). Gives
+/// exactly the figures of [`evaluate`].
+pub fn evaluate_on_thread(
+    model: &Model,
+    policy: &Policy,
+    range: Range<u64>,
+    target: f64,
+    ws: &mut Workspace,
+) -> Summary {
+    let sim = Simulator::new(model, policy);
+    let mut acc = Accumulator::new(model.parts.len());
+    let first = range.start;
+    for t in range {
+        acc.push(&sim.run(t, ws));
+    }
+    Summary::new(model, policy, first, acc, target)
 }

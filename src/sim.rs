@@ -2,9 +2,17 @@
 //!
 //! Owns: the event loop, the unit and position states, the shared stores and
 //! the per-trial bookkeeping of down time, counts and costs, following the
-//! rules and conventions of the reference model (see MODEL-NOTES in the README).
-//! May use: `model`, `dist`, `stream`, `outcome`. Does no I/O, cannot fail,
-//! and takes all its randomness from the trial's streams.
+//! rules and conventions of the reference model (see
+//! docs/scenario-format.md, "How the simulation reads these fields").
+//! May use: `model`, `dist`, `stream`, `outcome`, `uncertainty`. Does no
+//! I/O, cannot fail, and takes all its randomness from the trial's streams.
+//!
+//! With [`Model::parameter_uncertainty`] on, each trial first draws the life
+//! of every part type that carries a [`PartType::life_uncertainty`] from the
+//! trial's `Parameters { part }` stream (a pure function of seed, trial and
+//! part, so every policy meets the same lives), then runs as usual.
+//!
+//! [`PartType::life_uncertainty`]: crate::model::PartType::life_uncertainty
 //!
 //! What the replacement rules decide is asked of [`Rule`] (when is a part
 //! due?); the loop itself only moves clocks, parts and spares.
@@ -215,6 +223,8 @@ pub struct Workspace {
     orders: Vec<u64>,
     /// Orders placed and not yet arrived, per part type.
     on_order: Vec<u64>,
+    /// The trial's drawn lives per part type (parameter uncertainty).
+    trial_lives: Vec<Life>,
 }
 
 /// Simulates trials of one model under one policy.
@@ -225,6 +235,9 @@ pub struct Simulator<'m> {
     active: ActiveParts,
     /// Life per part type (the model's unless overridden per trial).
     lives: Vec<Life>,
+    /// True when trials draw their own lives (parameter uncertainty on and
+    /// some part type uncertain).
+    draws_lives: bool,
 }
 
 impl<'m> Simulator<'m> {
@@ -241,13 +254,56 @@ impl<'m> Simulator<'m> {
             policy: policy.to_vec(),
             active,
             lives: model.parts.iter().map(|p| p.life).collect(),
+            draws_lives: model.parameter_uncertainty
+                && model.parts.iter().any(|p| {
+                    p.life_uncertainty
+                        .as_ref()
+                        .is_some_and(|u| u.is_uncertain())
+                }),
+        }
+    }
+
+    /// True when each trial draws its own lives ([`Model::parameter_uncertainty`]
+    /// on and at least one part type with a varying life uncertainty).
+    pub fn draws_lives(&self) -> bool {
+        self.draws_lives
+    }
+
+    /// The per-part lives trial `seed` uses, written into `out` (cleared
+    /// first): the model's lives, with a fresh draw from the trial's
+    /// `Parameters { part }` stream for every part type that has a
+    /// [`PartType::life_uncertainty`] when [`Model::parameter_uncertainty`]
+    /// is on. For callers of [`Simulator::run_seeded`] that want the same
+    /// lives as [`Simulator::run`].
+    ///
+    /// [`PartType::life_uncertainty`]: crate::model::PartType::life_uncertainty
+    pub fn trial_lives(&self, seed: &TrialSeed, out: &mut Vec<Life>) {
+        out.clear();
+        out.extend_from_slice(&self.lives);
+        if !self.draws_lives {
+            return;
+        }
+        for (p, part) in self.model.parts.iter().enumerate() {
+            if let Some(u) = &part.life_uncertainty {
+                let mut rng = seed.stream(StreamKey::Parameters { part: p as u32 });
+                out[p] = u.draw(&mut rng);
+            }
         }
     }
 
     /// Run trial `trial` and return its outcome.
     pub fn run(&self, trial: u64, ws: &mut Workspace) -> TrialOutcome {
         let seed = TrialSeed::new(self.model.seed, trial);
-        self.run_seeded(&seed, &self.lives, ws)
+        if !self.draws_lives {
+            return self.run_seeded(&seed, &self.lives, ws);
+        }
+        // The buffer is lent out of the workspace for the trial and put back,
+        // so a thread allocates it once.
+        let mut lives = std::mem::take(&mut ws.trial_lives);
+        self.trial_lives(&seed, &mut lives);
+        let out = self.run_seeded(&seed, &lives, ws);
+        ws.trial_lives = lives;
+        out
     }
 
     /// Run a trial with the given streams and per-part lives.
@@ -261,9 +317,15 @@ impl<'m> Simulator<'m> {
     /// event (stock identity, hold counts). For tests; panics on a broken one.
     pub fn run_checked(&self, trial: u64, ws: &mut Workspace) -> TrialOutcome {
         let seed = TrialSeed::new(self.model.seed, trial);
-        let mut run = Run::start(self, &seed, &self.lives, ws, true);
-        run.event_loop();
-        run.finish()
+        let mut lives = std::mem::take(&mut ws.trial_lives);
+        self.trial_lives(&seed, &mut lives);
+        let out = {
+            let mut run = Run::start(self, &seed, &lives, ws, true);
+            run.event_loop();
+            run.finish()
+        };
+        ws.trial_lives = lives;
+        out
     }
 }
 

@@ -289,3 +289,37 @@ fn not_utf8_and_empty() {
     assert!(err.contains("UTF-8"), "{err}");
     refuses("empty", "", &["missing field `scenario`"]);
 }
+
+#[test]
+fn contradictory_or_empty_fields() {
+    refuses(
+        "holding_both",
+        &b0_with(
+            "holding = { fraction_of_price = 0.2, per_hours = 6000 }",
+            "holding = { fraction_of_price = 0.2, per_hours = 6000, per_spare_hour = 1 }",
+        ),
+        &["defaults.holding", "not both"],
+    );
+    refuses(
+        "empty_intervals",
+        &b0_with(
+            "interval_fractions = [0.5, 0.7, 0.9, 1.1]",
+            "interval_fractions = []",
+        ),
+        &["search.every_part.interval_fractions", "empty"],
+    );
+    refuses(
+        "duplicate_positions",
+        &b0_with(
+            "positions = [\"engine\", \"pump\", \"belt\"]",
+            "positions = [{ name = \"pump#2\", part = \"pump\" }, \"pump\", \"pump\", \"engine\", \"belt\"]",
+        ),
+        &["units.loader.positions", "`pump#2`"],
+    );
+    let demo = scenario("demo");
+    refuses(
+        "safety_false",
+        &demo.replacen("safety_critical = true", "safety_critical = false", 1),
+        &["parts.brake_actuator", "safety_critical = false"],
+    );
+}

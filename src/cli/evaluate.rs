@@ -25,9 +25,7 @@ pub fn run(
     out: &mut dyn Write,
 ) -> Result<(), UserError> {
     let (mut model, _shown) = load_or_demo(file)?;
-    if let Some(s) = opts.seed {
-        model.seed = s;
-    }
+    opts.apply(&mut model);
     let target = check_target(opts.target, model.target)?;
     let trials = trials.unwrap_or(model.trials);
     if trials == 0 {
@@ -77,13 +75,18 @@ pub fn render(model: &Model, j: &EvaluateJson) -> String {
     };
     let mut s = String::new();
     s.push_str(&format!(
-        "Scenario `{}`, policy `{}`: {} trials (seed {}), {} units over {} h\n\n",
+        "Scenario `{}`, policy `{}`: {} trials (seed {}), {} units over {} h{}\n\n",
         j.scenario,
         j.policy,
         num(j.trials as f64, 0),
         j.seed,
         j.units,
-        num(j.horizon_hours, 0)
+        num(j.horizon_hours, 0),
+        if j.parameter_uncertainty {
+            "; life parameters drawn per trial from their fits"
+        } else {
+            ""
+        }
     ));
     let a = &j.availability;
     s.push_str("Fleet availability\n");

@@ -8,6 +8,7 @@
 mod check;
 mod evaluate;
 pub mod fit;
+pub mod frontier;
 mod progress;
 pub mod text;
 
@@ -51,6 +52,23 @@ pub struct RunOpts {
     /// Worker threads (default: all cores). Never changes a result.
     #[arg(long)]
     pub threads: Option<usize>,
+    /// Draw each trial's life parameters from the fits' sampling
+    /// distributions (parts whose life comes from records); overrides the
+    /// scenario's `parameter_uncertainty`.
+    #[arg(long = "parameter-uncertainty")]
+    pub parameter_uncertainty: bool,
+}
+
+impl RunOpts {
+    /// Apply the options that change the model.
+    pub(crate) fn apply(&self, model: &mut crate::model::Model) {
+        if let Some(s) = self.seed {
+            model.seed = s;
+        }
+        if self.parameter_uncertainty {
+            model.parameter_uncertainty = true;
+        }
+    }
 }
 
 #[derive(Debug, Subcommand)]
@@ -70,6 +88,28 @@ pub enum Command {
         /// Number of trials (default: the scenario's `trials`).
         #[arg(long)]
         trials: Option<u64>,
+        #[command(flatten)]
+        run: RunOpts,
+    },
+    /// Search replacement rules and stock levels together and list the
+    /// policies no other beats on both cost and the chance of meeting the
+    /// availability target.
+    Frontier {
+        /// Scenario file (TOML); the embedded demo when omitted.
+        file: Option<PathBuf>,
+        /// Search trials (default: the scenario's [search] trials, else 2000).
+        #[arg(long)]
+        trials: Option<u64>,
+        /// Fresh trials to re-cost the frontier on (default: [search]
+        /// validate_trials, else 10000).
+        #[arg(long = "validate-trials")]
+        validate_trials: Option<u64>,
+        /// Evaluate every policy of the search space (small spaces only).
+        #[arg(long)]
+        exhaustive: bool,
+        /// At most this many policies simulated in full during the search.
+        #[arg(long = "max-full", default_value_t = 48)]
+        max_full: usize,
         #[command(flatten)]
         run: RunOpts,
     },
@@ -137,6 +177,24 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
         } => {
             set_threads(run.threads)?;
             evaluate::run(file.as_deref(), policy.as_deref(), trials, &run, out)
+        }
+        Command::Frontier {
+            file,
+            trials,
+            validate_trials,
+            exhaustive,
+            max_full,
+            run,
+        } => {
+            set_threads(run.threads)?;
+            let args = frontier::FrontierArgs {
+                file: file.as_deref(),
+                trials,
+                validate_trials,
+                exhaustive,
+                max_full,
+            };
+            frontier::run(&args, &run, out)
         }
         Command::Fit {
             records,

@@ -36,6 +36,12 @@ impl Bar {
 }
 
 impl Progress for Bar {
+    fn phase(&self, name: &str, total: u64) {
+        self.bar.set_message(name.to_string());
+        self.bar.set_length(total);
+        self.bar.set_position(0);
+    }
+
     fn advance(&self, n: u64) {
         self.bar.inc(n);
     }

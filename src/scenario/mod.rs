@@ -4,7 +4,9 @@
 //! `docs/scenario-format.md`), the embedded demo scenario, and every check
 //! of what a user typed, with errors naming the file, field path, line and
 //! what is allowed. The only module that knows TOML.
-//! May use: `model`, `dist`, the `tree` walker.
+//! May use: `model`, `dist`, the `tree` walker; `fit` (records reader and
+//! maximum-likelihood fits) and `uncertainty` for a life fitted to records,
+//! the only file the scenario layer reads besides the scenario itself.
 
 mod tree;
 
@@ -14,10 +16,12 @@ use thiserror::Error;
 use toml::de::DeTable;
 
 use crate::dist::{DistError, Hours, LeadTime, Life};
+use crate::fit::{Family, Fit, Record, Sample, fit_mle, fit_part, read_records, select_parts};
 use crate::model::{
     CostBasis, CostMeasure, CostStatistic, FleetGroup, InitialAge, Model, PartPolicy, PartSearch,
     PartType, Policy, Position, Rule, SearchSpace, UnitType,
 };
+use crate::uncertainty::LifeUncertainty;
 use tree::{Source, Tbl, Val, each};
 
 pub use tree::suggest;
@@ -62,7 +66,8 @@ pub fn load(path: &Path) -> Result<Model, LoadError> {
         file: file.clone(),
         reason: "it is not UTF-8 text".to_string(),
     })?;
-    Ok(parse(&file, &text)?)
+    let base = path.parent().unwrap_or(Path::new(""));
+    Ok(parse_with_base(&file, &text, Some(base))?)
 }
 
 /// Load a scenario file, or the embedded demo when `path` is `None`.
@@ -81,6 +86,22 @@ pub fn load_or_demo(path: Option<&Path>) -> Result<(Model, String), LoadError> {
 /// # Errors
 /// When the text is not a valid scenario.
 pub fn parse(file: &str, text: &str) -> Result<Model, ScenarioError> {
+    parse_with_base(file, text, None)
+}
+
+/// Parse and validate scenario text whose records references (`life = {
+/// records = "..." }`) are relative to the folder `base` (the scenario
+/// file's folder); with `None` (text not read from a file) a records
+/// reference is an error.
+///
+/// # Errors
+/// When the text is not a valid scenario, or a referenced records file
+/// cannot be read or fitted.
+pub fn parse_with_base(
+    file: &str,
+    text: &str,
+    base: Option<&Path>,
+) -> Result<Model, ScenarioError> {
     let src = Source { file, text };
     let doc = DeTable::parse(text).map_err(|e| {
         let span = e.span().unwrap_or(0..0);
@@ -88,7 +109,7 @@ pub fn parse(file: &str, text: &str) -> Result<Model, ScenarioError> {
         src.error("", span, format!("TOML syntax error: {msg}"))
     })?;
     let root = Tbl::root(src, &doc);
-    read_model(&root)
+    read_model(&root, base)
 }
 
 const ROOT_KEYS: &[&str] = &[
@@ -124,6 +145,11 @@ impl HoldingSpec {
 
 fn read_holding(v: Val<'_, '_>) -> Result<HoldingSpec, ScenarioError> {
     let t = v.table()?;
+    if t.has("per_spare_hour") && (t.has("fraction_of_price") || t.has("per_hours")) {
+        return Err(t.error(
+            "give either `per_spare_hour`, or `fraction_of_price` with `per_hours`, not both",
+        ));
+    }
     let out = if t.has("per_spare_hour") {
         HoldingSpec::PerHour(t.need("per_spare_hour", "cost per spare per hour", |v| {
             v.non_negative()
@@ -249,6 +275,153 @@ fn read_life(v: Val<'_, '_>) -> Result<Life, ScenarioError> {
     life.map_err(|e| dist_err(&v, e))
 }
 
+/// The families a records reference may ask for; `best` is the lowest AIC.
+const RECORDS_DISTS: &[&str] = &[
+    "weibull",
+    "weibull3",
+    "lognormal",
+    "gamma",
+    "exponential",
+    "best",
+];
+
+/// A part's life: given as parameters, or fitted to records (then with the
+/// fit's sampling uncertainty).
+fn read_life_or_records(
+    v: Val<'_, '_>,
+    part: &str,
+    base: Option<&Path>,
+) -> Result<(Life, Option<LifeUncertainty>), ScenarioError> {
+    if v.is_table() && v.table()?.has("records") {
+        let (life, u) = read_records_life(v, part, base)?;
+        Ok((life, Some(u)))
+    } else {
+        Ok((read_life(v)?, None))
+    }
+}
+
+/// `life = { records = "file.csv", dist = "weibull", part = "..." }`: read
+/// the records (relative to `base`), pick the part's rows, fit by maximum
+/// likelihood. Without `part`, a file of one part is used whole, and a file
+/// of several parts is searched for the scenario's part name (exact, then
+/// ignoring ASCII case).
+fn read_records_life(
+    v: Val<'_, '_>,
+    part: &str,
+    base: Option<&Path>,
+) -> Result<(Life, LifeUncertainty), ScenarioError> {
+    let t = v.table()?;
+    // Each field's place, for errors raised after the table is read.
+    let (rel, at_records) = t.need(
+        "records",
+        "the records CSV file, relative to the scenario file's folder",
+        |v| {
+            let s = v.string()?;
+            if s.trim().is_empty() {
+                return Err(v.error(
+                    "give the path of a records CSV file, relative to the scenario file's folder",
+                ));
+            }
+            Ok((s.to_string(), v.error(String::new())))
+        },
+    )?;
+    let dist = t.need(
+        "dist",
+        "the family to fit: one of weibull, weibull3, lognormal, gamma, exponential, or best (lowest AIC)",
+        |v| v.one_of(RECORDS_DISTS),
+    )?;
+    let wanted = t.with("part", |v| {
+        let s = v.string()?;
+        if s.trim().is_empty() {
+            return Err(v.error("give the part's name as it appears in the records' part column"));
+        }
+        Ok((s.to_string(), v.error(String::new())))
+    })?;
+    t.finish(&["records", "dist", "part"])?;
+    let err_at = |at: &ScenarioError, message: String| ScenarioError {
+        message,
+        ..at.clone()
+    };
+    let Some(base) = base else {
+        return Err(err_at(
+            &at_records,
+            format!(
+                "records file `{rel}` cannot be found: this scenario text was not read from a file, so there is no folder to look in; load the scenario from a file, or give the life as parameters, e.g. {{ dist = \"weibull\", shape = 2.2, scale = 14000 }}"
+            ),
+        ));
+    };
+    let path = base.join(&rel);
+    let shown = path.display().to_string();
+    let records = read_records(&path).map_err(|e| err_at(&at_records, e.to_string()))?;
+    let sample = match &wanted {
+        Some((name, at_part)) => {
+            one_part(&records, name).map_err(|m| err_at(at_part, format!("{shown}: {m}")))?
+        }
+        None => {
+            let all = crate::fit::samples_by_part(&records);
+            if all.len() == 1 {
+                all.into_iter()
+                    .next()
+                    .ok_or_else(|| err_at(&at_records, format!("{shown}: no records")))?
+            } else {
+                one_part(&records, part).map_err(|_| {
+                    let names: Vec<String> = all.iter().map(|s| format!("'{}'", s.part())).collect();
+                    err_at(
+                        &at_records,
+                        format!(
+                            "{shown} holds records of several parts ({}) and none is named '{part}'; say which with `part = \"...\"` in this life table",
+                            names.join(", ")
+                        ),
+                    )
+                })?
+            }
+        }
+    };
+    let fit =
+        fit_records(&sample, dist).map_err(|m| err_at(&at_records, format!("{shown}: {m}")))?;
+    let u = LifeUncertainty::from_fit(&fit, &sample)
+        .map_err(|e| err_at(&at_records, format!("{shown}: {e}")))?;
+    Ok((fit.life(), u))
+}
+
+/// The one sample of the records named `name`.
+fn one_part(records: &[Record], name: &str) -> Result<Sample, String> {
+    let mut chosen = select_parts(records, Some(name)).map_err(|e| e.to_string())?;
+    if chosen.len() == 1 {
+        Ok(chosen.remove(0))
+    } else {
+        let names: Vec<String> = chosen.iter().map(|s| format!("'{}'", s.part())).collect();
+        Err(format!(
+            "several parts match '{name}' when case is ignored ({}); give the exact name",
+            names.join(", ")
+        ))
+    }
+}
+
+/// Fit one family by maximum likelihood, or every family and keep the
+/// lowest AIC (`best`).
+fn fit_records(sample: &Sample, dist: &str) -> Result<Fit, String> {
+    if dist == "best" {
+        let fits = fit_part(sample).map_err(|e| e.to_string())?;
+        return match fits.best() {
+            Some(f) => Ok(f.clone()),
+            None => Err(format!(
+                "no family could be fitted: {}",
+                fits.not_fitted
+                    .iter()
+                    .map(|n| format!("{}: {}", n.distribution.name(), n.reason))
+                    .collect::<Vec<_>>()
+                    .join("; ")
+            )),
+        };
+    }
+    let family = Family::ALL
+        .into_iter()
+        .find(|f| f.name() == dist)
+        .ok_or_else(|| format!("unknown family `{dist}`"))?;
+    fit_mle(sample, family).map_err(|e| e.to_string())
+}
+
 fn read_pair(v: Val<'_, '_>, what: &str, positive: bool) -> Result<(f64, f64), ScenarioError> {
     let t = v.table()?;
     let get = |v: Val<'_, '_>| {
@@ -264,12 +437,17 @@ fn read_pair(v: Val<'_, '_>, what: &str, positive: bool) -> Result<(f64, f64), S
     Ok((p, u))
 }
 
-fn read_part(name: &str, v: Val<'_, '_>, defaults: &Defaults) -> Result<PartType, ScenarioError> {
+fn read_part(
+    name: &str,
+    v: Val<'_, '_>,
+    defaults: &Defaults,
+    base: Option<&Path>,
+) -> Result<PartType, ScenarioError> {
     let t = v.table()?;
-    let life = t.need(
+    let (life, life_uncertainty) = t.need(
         "life",
-        "the life distribution, e.g. { dist = \"weibull\", shape = 2.2, scale = 14000 }",
-        read_life,
+        "the life distribution, e.g. { dist = \"weibull\", shape = 2.2, scale = 14000 }, or fitted to records: { records = \"removals.csv\", dist = \"weibull\" }",
+        |v| read_life_or_records(v, name, base),
     )?;
     let price = t.need("price", "price of one spare", |v| v.non_negative())?;
     let (labour_planned, labour_unplanned) = t.need(
@@ -299,6 +477,11 @@ fn read_part(name: &str, v: Val<'_, '_>, defaults: &Defaults) -> Result<PartType
         toml::de::DeValue::Boolean(b) => Ok(*b),
         _ => Err(v.error("expected true or false")),
     })?;
+    if safety == Some(false) && hard_limit.is_some() {
+        return Err(t.error(
+            "a part with `hard_limit_hours` is safety-critical here (never run to failure, never kept past the limit); remove `safety_critical = false` or the limit",
+        ));
+    }
     if safety == Some(true) && hard_limit.is_none() {
         return Err(t.error(
             "a safety-critical part needs `hard_limit_hours`: the age (hours) it may never be kept past",
@@ -325,6 +508,7 @@ fn read_part(name: &str, v: Val<'_, '_>, defaults: &Defaults) -> Result<PartType
         lead_time,
         holding_per_hour: holding.per_spare_hour(price),
         hard_limit,
+        life_uncertainty,
     })
 }
 
@@ -503,7 +687,13 @@ fn read_intervals(t: &Tbl<'_, '_>, part: &PartType) -> Result<Option<Vec<Hours>>
         }
         Ok((0..n).map(|i| from + i as f64 * step).collect())
     };
-    let list = |v: Val<'_, '_>| each(&v, |x| x.positive());
+    let list = |v: Val<'_, '_>| {
+        let l = each(&v, |x| x.positive())?;
+        if l.is_empty() {
+            return Err(v.error("the list of intervals is empty; give at least one"));
+        }
+        Ok(l)
+    };
     let mut found: Vec<Vec<Hours>> = Vec::new();
     if let Some(v) = t.with("interval_hours", list)? {
         found.push(v);
@@ -557,15 +747,19 @@ fn read_part_search(
             })
         })?
         .unwrap_or_else(|| vec!["run_to_failure".to_string()]);
-    let iv_tbl = [
+    // Intervals come wholly from the part's own table if it names any,
+    // otherwise wholly from [search.every_part].
+    const INTERVAL_KEYS: [&str; 4] = [
         "interval_hours",
         "interval_fractions",
         "interval_hours_range",
         "interval_fraction_range",
-    ]
-    .iter()
-    .find_map(|k| pick(k))
-    .unwrap_or(t);
+    ];
+    let iv_tbl = if INTERVAL_KEYS.iter().any(|k| t.has(k)) {
+        t
+    } else {
+        INTERVAL_KEYS.iter().find_map(|k| pick(k)).unwrap_or(t)
+    };
     let intervals = read_intervals(iv_tbl, part)?;
     let stock_tbl = pick("stock").unwrap_or(t);
     let (smin, smax) = stock_tbl
@@ -606,7 +800,9 @@ fn read_part_search(
     }
     // Safety-critical parts: never run to failure, never past the hard limit.
     if let Some(limit) = part.hard_limit {
-        rules.retain(|r| matches!(r.interval(), Some(x) if x <= limit * (1.0 + 1e-12)));
+        rules.retain(
+            |r| matches!(r.interval(), Some(x) if x <= limit * (1.0 + crate::model::LIMIT_SLACK)),
+        );
         if rules.is_empty() {
             return Err(t.error(format!(
                 "part type `{}` is safety-critical (hard limit {limit} h): the search space leaves it no allowed rule; give age or block intervals at or below the limit",
@@ -648,6 +844,12 @@ fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, Scenar
         })?
         .unwrap_or(CostStatistic::Mean);
     let spares_budget = t.with("spares_budget", |v| v.positive())?;
+    let search_trials = t
+        .with("trials", |v| v.integer(1, 100_000_000))?
+        .unwrap_or(2000) as u64;
+    let validate_trials = t
+        .with("validate_trials", |v| v.integer(1, 100_000_000))?
+        .unwrap_or(10_000) as u64;
     let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
     // [search.every_part] fills in what a part's own table leaves out.
     let every_raw = t.with("every_part", |v| Ok((v.value.clone(), v.span)))?;
@@ -704,15 +906,25 @@ fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, Scenar
             },
         }
     }
-    t.finish(&["cost", "statistic", "spares_budget", "every_part", "parts"])?;
+    t.finish(&[
+        "cost",
+        "statistic",
+        "spares_budget",
+        "trials",
+        "validate_trials",
+        "every_part",
+        "parts",
+    ])?;
     Ok(SearchSpace {
         parts: out,
         spares_budget,
         cost: CostMeasure { basis, statistic },
+        search_trials,
+        validate_trials,
     })
 }
 
-fn read_model(root: &Tbl<'_, '_>) -> Result<Model, ScenarioError> {
+fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, ScenarioError> {
     let sc = root.need("scenario", "the [scenario] table with name, horizon_hours, ...", |v| {
         let t = v.table()?;
         let name = t.need("name", "a short name, e.g. \"quarry\"", |v| {
@@ -742,6 +954,12 @@ fn read_model(root: &Tbl<'_, '_>) -> Result<Model, ScenarioError> {
         let seed = t.with("seed", |v| v.integer(0, u64::MAX as i128))?.unwrap_or(1) as u64;
         let trials = t.with("trials", |v| v.integer(1, 1_000_000_000))?.unwrap_or(2000) as u64;
         let currency = t.with("currency", |v| v.string().map(str::to_string))?.unwrap_or_default();
+        let uncertainty = t
+            .with("parameter_uncertainty", |v| match v.value {
+                toml::de::DeValue::Boolean(b) => Ok(*b),
+                _ => Err(v.error("expected true or false")),
+            })?
+            .unwrap_or(false);
         t.finish(&[
             "name",
             "description",
@@ -751,10 +969,21 @@ fn read_model(root: &Tbl<'_, '_>) -> Result<Model, ScenarioError> {
             "seed",
             "trials",
             "currency",
+            "parameter_uncertainty",
         ])?;
-        Ok((name, description, horizon, penalty, target, seed, trials, currency))
+        Ok((name, description, horizon, penalty, target, seed, trials, currency, uncertainty))
     })?;
-    let (name, description, horizon, downtime_penalty, target, seed, trials, currency) = sc;
+    let (
+        name,
+        description,
+        horizon,
+        downtime_penalty,
+        target,
+        seed,
+        trials,
+        currency,
+        parameter_uncertainty,
+    ) = sc;
 
     let mut age_default: Option<AgeSpec> = None;
     let defaults = root
@@ -775,7 +1004,7 @@ fn read_model(root: &Tbl<'_, '_>) -> Result<Model, ScenarioError> {
         let t = v.table()?;
         let parts = t.entries(|key, v| {
             check_name(&v, key)?;
-            read_part(key, v, &defaults)
+            read_part(key, v, &defaults, base)
         })?;
         if parts.is_empty() {
             return Err(v.error("define at least one part type as [parts.NAME]"));
@@ -817,6 +1046,14 @@ fn read_model(root: &Tbl<'_, '_>) -> Result<Model, ScenarioError> {
                 })?;
                 if ps.is_empty() {
                     return Err(v.error("a unit type needs at least one position"));
+                }
+                for (i, p) in ps.iter().enumerate() {
+                    if ps[..i].iter().any(|q: &Position| q.name == p.name) {
+                        return Err(v.error(format!(
+                            "two positions are named `{}`; position names must differ",
+                            p.name
+                        )));
+                    }
                 }
                 if ps.len() > 65_000 {
                     return Err(v.error("at most 65 000 positions per unit type"));
@@ -938,6 +1175,7 @@ fn read_model(root: &Tbl<'_, '_>) -> Result<Model, ScenarioError> {
         policies: policies.iter().map(|(p, _)| p.clone()).collect(),
         search,
         currency,
+        parameter_uncertainty,
     };
     for (p, span) in &policies {
         if let Some(msg) = model.safety_violation(p) {

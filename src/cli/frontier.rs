@@ -1,0 +1,170 @@
+//! `wearout frontier`: search intervals and stock levels together and list
+//! the non-dominated policies.
+
+use std::io::Write;
+use std::path::Path;
+
+use super::evaluate::CAUTION;
+use super::progress::Bar;
+use super::text::{money, num, pct, table};
+use super::{RunOpts, UserError, check_target, io};
+use crate::frontier::{FrontierConfig, FrontierResult, search};
+use crate::model::{Model, Rule};
+use crate::result::{FrontierJson, cost_measure_label};
+use crate::scenario::load_or_demo;
+
+/// What the command line asked of a frontier run.
+pub struct FrontierArgs<'a> {
+    pub file: Option<&'a Path>,
+    pub trials: Option<u64>,
+    pub validate_trials: Option<u64>,
+    pub exhaustive: bool,
+    pub max_full: usize,
+}
+
+/// Load, search and return the model, result and JSON (used by reports too).
+pub fn compute(
+    args: &FrontierArgs<'_>,
+    opts: &RunOpts,
+) -> Result<(Model, FrontierResult, FrontierJson), UserError> {
+    let (mut model, _shown) = load_or_demo(args.file)?;
+    opts.apply(&mut model);
+    let target = check_target(opts.target, model.target)?;
+    let space = model.search.as_ref().ok_or_else(|| {
+        UserError(format!(
+            "scenario `{}` has no [search] table, so there is nothing to search; add one (docs/scenario-format.md)",
+            model.name
+        ))
+    })?;
+    let search_trials = args.trials.unwrap_or(space.search_trials);
+    let validate_trials = args.validate_trials.unwrap_or(space.validate_trials);
+    if search_trials == 0 || validate_trials == 0 {
+        return Err(UserError(
+            "--trials and --validate-trials must be at least 1".into(),
+        ));
+    }
+    let config = FrontierConfig {
+        search_trials,
+        validate_trials,
+        target,
+        exhaustive: args.exhaustive,
+        max_full: args.max_full,
+        screen_trials: 1000,
+        max_frontier: 24,
+    };
+    let bar = Bar::new("frontier", 0);
+    let result = search(&model, &config, &bar)?;
+    bar.finish();
+    let json = FrontierJson::new(&model, &result, args.exhaustive);
+    Ok((model, result, json))
+}
+
+pub fn run(args: &FrontierArgs<'_>, opts: &RunOpts, out: &mut dyn Write) -> Result<(), UserError> {
+    let (model, result, json) = compute(args, opts)?;
+    if opts.json {
+        let s = serde_json::to_string_pretty(&json).map_err(|e| UserError(e.to_string()))?;
+        writeln!(out, "{s}").map_err(io)?;
+        return Ok(());
+    }
+    write!(out, "{}", render(&model, &result, &json)).map_err(io)
+}
+
+/// Compact rule: `A11200`, `B6000`, `RTF`.
+fn short_rule(r: Rule) -> String {
+    match r {
+        Rule::RunToFailure => "RTF".into(),
+        Rule::Age(t) => format!("A{}", num(t, 0).replace(',', "")),
+        Rule::Block(t) => format!("B{}", num(t, 0).replace(',', "")),
+    }
+}
+
+/// The readable frontier table.
+pub fn render(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
+    let cur = if model.currency.is_empty() {
+        String::new()
+    } else {
+        format!(" {}", model.currency)
+    };
+    let mut s = String::new();
+    s.push_str(&format!(
+        "Scenario `{}`: {} units over {} h, target availability {}\n",
+        model.name,
+        model.units.len(),
+        num(model.horizon, 0),
+        pct(r.target)
+    ));
+    s.push_str(&format!(
+        "Cost measure: {}{cur} over the horizon. Chance = share of trials with availability >= {} (Wilson 95 % interval).\n\n",
+        cost_measure_label(r.cost),
+        pct(r.target)
+    ));
+    let mut header = vec![
+        "policy".to_string(),
+        "chance [95 % interval]".into(),
+        "cost ± se".into(),
+        "avail P10/P50/P90".into(),
+        "stock capital".into(),
+    ];
+    for p in &model.parts {
+        header.push(p.name.clone());
+    }
+    header.push("vs previous".into());
+    let mut rows = vec![header];
+    for pt in &r.points {
+        let c = &pt.costed;
+        let a = c.summary.availability();
+        let mut row = vec![
+            c.policy.name.clone(),
+            format!(
+                "{} [{}, {}]",
+                pct(c.chance.value),
+                pct(c.chance.lo),
+                pct(c.chance.hi)
+            ),
+            format!("{} ± {}", money(c.cost.mean), money(c.cost.se)),
+            format!(
+                "{:.1}/{:.1}/{:.1} %",
+                100.0 * a.p10,
+                100.0 * a.p50,
+                100.0 * a.p90
+            ),
+            money(c.summary.initial_stock_capital),
+        ];
+        for pp in &c.policy.parts {
+            row.push(format!("{} S{}", short_rule(pp.rule), pp.stock));
+        }
+        row.push(match pt.noise {
+            None => "-".into(),
+            Some(n) => match (n.chance_within_noise, n.cost_within_noise) {
+                (true, true) => "same within noise".into(),
+                (true, false) => "chance same within noise".into(),
+                (false, true) => "cost same within noise".into(),
+                (false, false) => "differs".into(),
+            },
+        });
+        rows.push(row);
+    }
+    s.push_str(&table(&rows));
+    s.push_str("\nRules: RTF run to failure, A<h> age replacement at h operating hours, B<h> block replacement every h unit operating hours; S<n> base-stock level.\n");
+    s.push_str("\"same within noise\": the paired difference from the row above, on the same trials, is within two standard errors; do not pay for it.\n");
+    let st = &r.stats;
+    s.push_str(&format!(
+        "\nSearched {} of {} policies{} in full on {} search trials ({} single-part screening runs, {} policies scored on the surrogate, {} linear programs); re-costed {} of the {} search-frontier policies on {} fresh trials. Took {:.1} s (screening {:.1} s, search {:.1} s, validation {:.1} s).\n",
+        num(st.evaluated as f64, 0),
+        num(r.space_size as f64, 0),
+        if j.exhaustive { " (exhaustive)" } else { "" },
+        num(r.search_trials as f64, 0),
+        st.screening_runs,
+        num(st.surrogate_scored as f64, 0),
+        st.lps,
+        st.recosted,
+        r.search_frontier.len(),
+        num(r.validate_trials as f64, 0),
+        j.seconds,
+        st.seconds_screening,
+        st.seconds_search,
+        st.seconds_validation
+    ));
+    s.push_str(&format!("\n{CAUTION}\n"));
+    s
+}
