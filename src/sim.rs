@@ -556,10 +556,10 @@ impl<'a, 'm> Run<'a, 'm> {
     /// A unit goes from up to down or gains another reason to stay down.
     fn hold_down(&mut self, u: usize) {
         let unit = &mut self.ws.units[u];
+        // The unit's entry in the tournament is left as it is; a stale entry
+        // that reaches the top is discarded there (lazy deletion), and one
+        // that does not is overwritten when the unit comes up again.
         unit.holding_down += 1;
-        if unit.holding_down == 1 {
-            self.ws.tourney.set(u, f64::INFINITY, CLASS_DUE);
-        }
     }
 
     fn release(&mut self, u: usize, now: Hours) {
@@ -638,6 +638,12 @@ impl<'a, 'm> Run<'a, 'm> {
             if !ut.is_finite() {
                 self.out.events -= 1;
                 break;
+            }
+            if self.ws.units[u].holding_down > 0 {
+                // Stale: the unit went down after this event was set.
+                self.out.events -= 1;
+                self.ws.tourney.set(u, f64::INFINITY, CLASS_DUE);
+                continue;
             }
             self.advance_unit(u, ut);
             // Snap the clock to the event's reading (no rounding drift).

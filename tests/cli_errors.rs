@@ -323,3 +323,22 @@ fn contradictory_or_empty_fields() {
         &["parts.brake_actuator", "safety_critical = false"],
     );
 }
+
+#[test]
+fn frontier_refusals() {
+    // --exhaustive on a space far beyond the limit is refused at once.
+    let b1 = format!("{}/scenarios/b1.toml", env!("CARGO_MANIFEST_DIR"));
+    let (code, err) = wearout(&["frontier", &b1, "--exhaustive"]);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("117649000000 policies") && err.contains("--exhaustive"),
+        "{err}"
+    );
+    // A scenario without a search space says what to add.
+    let text = scenario("b0");
+    let cut = text.find("[search]").expect("b0 has a search table");
+    let p = write_temp("nosearch", &text[..cut]);
+    let (code, err) = wearout(&["frontier", p.to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("no [search] table"), "{err}");
+}

@@ -626,30 +626,24 @@ pub fn search(
 }
 
 /// Keep at most `max` of the frontier `front` (indices into `pts`, cheapest
-/// first): the cheapest, the safest, and for evenly spaced chance levels
-/// between them the cheapest point reaching each level.
+/// first), spread over the chance range: the cheapest and the safest stay,
+/// and the interior point whose removal leaves the smallest chance gap
+/// between its neighbours goes first.
 fn thin(front: &[usize], pts: &[(f64, f64)], max: usize) -> Vec<usize> {
-    if front.len() <= max || max < 2 {
-        return front.to_vec();
-    }
-    let lo = pts[front[0]].1;
-    let hi = pts[front[front.len() - 1]].1;
-    let mut keep = vec![false; front.len()];
-    keep[0] = true;
-    keep[front.len() - 1] = true;
-    let slots = max - 2;
-    for k in 1..=slots {
-        let level = lo + (hi - lo) * k as f64 / (slots + 1) as f64;
-        if let Some(j) = (0..front.len()).find(|&j| pts[front[j]].1 >= level) {
-            keep[j] = true;
+    let mut keep = front.to_vec();
+    while keep.len() > max.max(2) {
+        let mut best = 1;
+        let mut best_gap = f64::INFINITY;
+        for j in 1..keep.len() - 1 {
+            let gap = pts[keep[j + 1]].1 - pts[keep[j - 1]].1;
+            if gap < best_gap {
+                best_gap = gap;
+                best = j;
+            }
         }
+        keep.remove(best);
     }
-    front
-        .iter()
-        .zip(keep)
-        .filter(|(_, k)| *k)
-        .map(|(&i, _)| i)
-        .collect()
+    keep
 }
 
 /// Mean surrogate down hours of a combination (for greedy steps).
