@@ -16,7 +16,12 @@ fn load(name: &str) -> wearout::model::Model {
     wearout::scenario::load(std::path::Path::new(&path)).expect("scenario loads")
 }
 
-fn config(search_trials: u64, validate_trials: u64, target: f64, exhaustive: bool) -> FrontierConfig {
+fn config(
+    search_trials: u64,
+    validate_trials: u64,
+    target: f64,
+    exhaustive: bool,
+) -> FrontierConfig {
     FrontierConfig {
         search_trials,
         validate_trials,
@@ -54,12 +59,23 @@ fn main() {
     let n = b0.search.as_ref().map_or(500, |s| s.search_trials);
     let t = Instant::now();
     let ex = search(&b0, &config(n, 10_000, b0.target, true), &Quiet).expect("B0 exhaustive");
-    report(&format!("B0 exhaustive {n}/10000"), &ex, t.elapsed().as_secs_f64());
+    report(
+        &format!("B0 exhaustive {n}/10000"),
+        &ex,
+        t.elapsed().as_secs_f64(),
+    );
     let t = Instant::now();
     let se = search(&b0, &config(n, 10_000, b0.target, false), &Quiet).expect("B0 search");
-    report(&format!("B0 search {n}/10000"), &se, t.elapsed().as_secs_f64());
+    report(
+        &format!("B0 search {n}/10000"),
+        &se,
+        t.elapsed().as_secs_f64(),
+    );
     let pts = |r: &FrontierResult| -> Vec<(f64, f64)> {
-        r.search_frontier.iter().map(|(_, c, k)| (c.mean, k.value)).collect()
+        r.search_frontier
+            .iter()
+            .map(|(_, c, k)| (c.mean, k.value))
+            .collect()
     };
     let (pe, ps) = (pts(&ex), pts(&se));
     let cost_ref = 1.01 * pe.iter().map(|p| p.0).fold(f64::MIN, f64::max);
