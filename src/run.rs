@@ -50,11 +50,19 @@ pub fn for_each_trial(
             return false;
         }
         let end = (start + BLOCK).min(range.end);
-        let outcomes: Vec<TrialOutcome> = (start..end)
+        // The observer is asked before every trial, so a cancelled run stops
+        // within about one trial's time even when a block is long (large
+        // fleets); a cancelled block is dropped whole, so results never change.
+        let outcomes: Vec<Option<TrialOutcome>> = (start..end)
             .into_par_iter()
-            .map_init(Workspace::default, |ws, t| sim.run(t, ws))
+            .map_init(Workspace::default, |ws, t| {
+                (!progress.cancelled()).then(|| sim.run(t, ws))
+            })
             .collect();
-        for (i, o) in outcomes.iter().enumerate() {
+        if outcomes.iter().any(Option::is_none) {
+            return false;
+        }
+        for (i, o) in outcomes.iter().flatten().enumerate() {
             each(start + i as u64, o);
         }
         progress.advance(end - start);

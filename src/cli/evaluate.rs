@@ -22,6 +22,7 @@ pub fn run(
     policy: Option<&str>,
     trials: Option<u64>,
     opts: &RunOpts,
+    report: Option<Option<&Path>>,
     out: &mut dyn Write,
 ) -> Result<(), UserError> {
     let (mut model, _shown) = load_or_demo(file)?;
@@ -51,6 +52,15 @@ pub fn run(
         })?,
     }
     .clone();
+    if super::shards::wants_shard(opts) {
+        if report.is_some() {
+            return Err(UserError(
+                "--report does not go with --shard/--out: pass --report to `wearout merge`".into(),
+            ));
+        }
+        return super::shards::evaluate_shard(file, &model, &pol, trials, target, opts, out);
+    }
+    super::shards::guard_evaluate(&model, &pol, trials)?;
     let bar = Bar::new("evaluate", trials);
     let summary = evaluate(&model, &pol, 0..trials, target, &bar)
         .ok_or_else(|| UserError("interrupted".into()))?;
@@ -60,10 +70,12 @@ pub fn run(
     if opts.json {
         let s = serde_json::to_string_pretty(&json).map_err(|e| UserError(e.to_string()))?;
         writeln!(out, "{s}").map_err(io)?;
-        return Ok(());
+    } else {
+        write!(out, "{}", render(&model, &json)).map_err(io)?;
     }
-    write!(out, "{}", render(&model, &json)).map_err(io)?;
-    Ok(())
+    super::write_report(report, &model.name, |progress| {
+        crate::report::evaluate_report(&model, &summary, &json, progress)
+    })
 }
 
 /// The readable table of an evaluation.

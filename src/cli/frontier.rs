@@ -20,6 +20,8 @@ pub struct FrontierArgs<'a> {
     pub validate_trials: Option<u64>,
     pub exhaustive: bool,
     pub max_full: usize,
+    /// Re-cost these policies instead of searching (`--policies`).
+    pub policies: Option<&'a Path>,
 }
 
 /// Load, search and return the model, result and JSON (used by reports too).
@@ -27,6 +29,9 @@ pub fn compute(
     args: &FrontierArgs<'_>,
     opts: &RunOpts,
 ) -> Result<(Model, FrontierResult, FrontierJson), UserError> {
+    if let Some(p) = args.policies {
+        return super::shards::compute_fixed(args, opts, p);
+    }
     let (mut model, _shown) = load_or_demo(args.file)?;
     opts.apply(&mut model);
     let target = check_target(opts.target, model.target)?;
@@ -52,6 +57,10 @@ pub fn compute(
         screen_trials: 1000,
         max_frontier: 24,
     };
+    super::shards::guard(
+        &model,
+        &crate::estimate::frontier(&model, &config, rayon::current_num_threads()),
+    )?;
     let bar = Bar::new("frontier", 0);
     let result = search(&model, &config, &bar)?;
     bar.finish();
@@ -59,14 +68,35 @@ pub fn compute(
     Ok((model, result, json))
 }
 
-pub fn run(args: &FrontierArgs<'_>, opts: &RunOpts, out: &mut dyn Write) -> Result<(), UserError> {
+pub fn run(
+    args: &FrontierArgs<'_>,
+    opts: &RunOpts,
+    report: Option<Option<&Path>>,
+    out: &mut dyn Write,
+) -> Result<(), UserError> {
+    if super::shards::wants_shard(opts) {
+        let Some(p) = args.policies else {
+            return Err(UserError(
+                "--shard/--out on frontier need --policies FILE.json: a search cannot be split, but re-costing a fixed list of policies (e.g. a previous --json) can".into(),
+            ));
+        };
+        if report.is_some() {
+            return Err(UserError(
+                "--report does not go with --shard/--out: pass --report to `wearout merge`".into(),
+            ));
+        }
+        return super::shards::frontier_shard(args, opts, p, out);
+    }
     let (model, result, json) = compute(args, opts)?;
     if opts.json {
         let s = serde_json::to_string_pretty(&json).map_err(|e| UserError(e.to_string()))?;
         writeln!(out, "{s}").map_err(io)?;
-        return Ok(());
+    } else {
+        write!(out, "{}", render(&model, &result, &json)).map_err(io)?;
     }
-    write!(out, "{}", render(&model, &result, &json)).map_err(io)
+    super::write_report(report, &model.name, |progress| {
+        crate::report::frontier_report(&model, &result, &json, progress)
+    })
 }
 
 /// Compact rule: `A11200`, `B6000`, `RTF`.
@@ -148,6 +178,18 @@ pub fn render(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     s.push_str("\nRules: RTF run to failure, A<h> age replacement at h operating hours, B<h> block replacement every h unit operating hours; S<n> base-stock level.\n");
     s.push_str("\"same within noise\": the paired difference from the row above, on the same trials, is within two standard errors; do not pay for it.\n");
     let st = &r.stats;
+    if r.search_trials == 0 {
+        // `--policies`: a fixed list re-costed, no search.
+        s.push_str(&format!(
+            "\nRe-costed the {} given policies on {} validation trials; {} of them are non-dominated. Took {:.1} s.\n",
+            st.recosted,
+            num(r.validate_trials as f64, 0),
+            r.points.len(),
+            st.seconds_validation
+        ));
+        s.push_str(&format!("\n{CAUTION}\n"));
+        return s;
+    }
     s.push_str(&format!(
         "\nSearched {} of {} policies{} in full on {} search trials ({} single-part screening runs, {} policies scored on the surrogate, {} linear programs); re-costed {} of the {} search-frontier policies on {} fresh trials. Took {:.1} s (screening {:.1} s, search {:.1} s, validation {:.1} s).\n",
         num(st.evaluated as f64, 0),

@@ -9,7 +9,9 @@ mod check;
 mod evaluate;
 pub mod fit;
 pub mod frontier;
+mod interrupt;
 mod progress;
+mod shards;
 pub mod text;
 
 use std::io::Write;
@@ -57,6 +59,15 @@ pub struct RunOpts {
     /// scenario's `parameter_uncertainty`.
     #[arg(long = "parameter-uncertainty")]
     pub parameter_uncertainty: bool,
+    /// Run only share K of N of the trials (K from 0 to N - 1, e.g. a
+    /// scheduler's array index) and write it to the shard file --out;
+    /// combine the shards with `wearout merge`. For `frontier`, needs
+    /// --policies.
+    #[arg(long, value_name = "K/N")]
+    pub shard: Option<String>,
+    /// The shard file to write (alone: the whole run as one shard).
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
 }
 
 impl RunOpts {
@@ -88,6 +99,12 @@ pub enum Command {
         /// Number of trials (default: the scenario's `trials`).
         #[arg(long)]
         trials: Option<u64>,
+        /// Also write a report folder (index.html, summary.md, CSV tables,
+        /// result.json, SVG figures) into DIR; without DIR, into
+        /// reports/<scenario-name>/. Give the scenario FILE before --report
+        /// when leaving DIR out.
+        #[arg(long, value_name = "DIR", num_args = 0..=1)]
+        report: Option<Option<PathBuf>>,
         #[command(flatten)]
         run: RunOpts,
     },
@@ -110,8 +127,35 @@ pub enum Command {
         /// At most this many policies simulated in full during the search.
         #[arg(long = "max-full", default_value_t = 48)]
         max_full: usize,
+        /// Skip the search: re-cost these policies (the output of a previous
+        /// `frontier --json`, or an array of its policies) on the validation
+        /// trials; with --shard K/N --out FILE, only a share of them.
+        #[arg(long, value_name = "FILE.json")]
+        policies: Option<PathBuf>,
+        /// Also write a report folder (index.html, summary.md, CSV tables,
+        /// result.json, SVG figures) into DIR; without DIR, into
+        /// reports/<scenario-name>/. Give the scenario FILE before --report
+        /// when leaving DIR out.
+        #[arg(long, value_name = "DIR", num_args = 0..=1)]
+        report: Option<Option<PathBuf>>,
         #[command(flatten)]
         run: RunOpts,
+    },
+    /// Combine shard files (from `--shard K/N --out FILE`) into the summary,
+    /// report and JSON the single run gives, bit for bit.
+    Merge {
+        /// The shard files, in any order.
+        shards: Vec<PathBuf>,
+        /// Print one JSON object on stdout instead of the table.
+        #[arg(long)]
+        json: bool,
+        /// Read this scenario file instead of the copy inside the shards
+        /// (it must give the same scenario).
+        #[arg(long, value_name = "FILE")]
+        scenario: Option<PathBuf>,
+        /// Also write a report folder, as `evaluate --report` does.
+        #[arg(long, value_name = "DIR", num_args = 0..=1)]
+        report: Option<Option<PathBuf>>,
     },
     /// Fit life distributions to failure and suspension records (CSV).
     Fit {
@@ -139,6 +183,7 @@ pub fn main() -> ExitCode {
             return ExitCode::from(code);
         }
     };
+    interrupt::install();
     let mut out = std::io::stdout().lock();
     let result = dispatch(cli, &mut out);
     match result {
@@ -146,6 +191,10 @@ pub fn main() -> ExitCode {
         Err(UserError(msg)) => {
             if msg == "broken pipe" {
                 return ExitCode::SUCCESS;
+            }
+            if msg == "interrupted" {
+                let _ = writeln!(std::io::stderr(), "{}", interrupt::MESSAGE);
+                return ExitCode::from(interrupt::EXIT_INTERRUPTED);
             }
             let _ = writeln!(std::io::stderr(), "error: {msg}");
             ExitCode::from(2)
@@ -173,10 +222,19 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
             file,
             policy,
             trials,
+            report,
             run,
         } => {
             set_threads(run.threads)?;
-            evaluate::run(file.as_deref(), policy.as_deref(), trials, &run, out)
+            let report = report.as_ref().map(|d| d.as_deref());
+            evaluate::run(
+                file.as_deref(),
+                policy.as_deref(),
+                trials,
+                &run,
+                report,
+                out,
+            )
         }
         Command::Frontier {
             file,
@@ -184,17 +242,35 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
             validate_trials,
             exhaustive,
             max_full,
+            policies,
+            report,
             run,
         } => {
             set_threads(run.threads)?;
+            let report = report.as_ref().map(|d| d.as_deref());
             let args = frontier::FrontierArgs {
                 file: file.as_deref(),
                 trials,
                 validate_trials,
                 exhaustive,
                 max_full,
+                policies: policies.as_deref(),
             };
-            frontier::run(&args, &run, out)
+            frontier::run(&args, &run, report, out)
+        }
+        Command::Merge {
+            shards,
+            json,
+            scenario,
+            report,
+        } => {
+            let args = shards::MergeArgs {
+                shards,
+                json,
+                scenario,
+                report,
+            };
+            shards::merge(&args, out)
         }
         Command::Fit {
             records,
@@ -216,6 +292,27 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
             })
         }
     }
+}
+
+/// Write a report folder when `--report` was given (`Some(None)`: the
+/// scenario's default folder) and say on stderr where it landed.
+pub(crate) fn write_report(
+    dir: Option<Option<&std::path::Path>>,
+    scenario: &str,
+    make: impl FnOnce(
+        &dyn crate::run::Progress,
+    ) -> Result<crate::report::Report, crate::report::ReportError>,
+) -> Result<(), UserError> {
+    let Some(dir) = dir else {
+        return Ok(());
+    };
+    let dir = dir.map_or_else(|| crate::report::default_dir(scenario), PathBuf::from);
+    let bar = progress::Bar::new("report", 0);
+    let report = make(&bar);
+    bar.finish();
+    let index = report?.write_to(&dir)?;
+    let _ = writeln!(std::io::stderr(), "report written: {}", index.display());
+    Ok(())
 }
 
 /// Map a write error: a closed pipe is not a failure.

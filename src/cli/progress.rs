@@ -45,4 +45,8 @@ impl Progress for Bar {
     fn advance(&self, n: u64) {
         self.bar.inc(n);
     }
+
+    fn cancelled(&self) -> bool {
+        super::interrupt::cancelled()
+    }
 }

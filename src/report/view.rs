@@ -1,0 +1,448 @@
+//! What the report shows, gathered once from the results: one row per
+//! policy (the frontier's points, or the one evaluated policy), which of
+//! them the figures single out, and the number formats people read.
+//!
+//! Owns: the report's view of a result and its formatting helpers.
+//! May use: `model`, `summary`, `frontier`, `averages`, `analytic`, `dist`.
+//! No simulation, no I/O.
+
+use crate::analytic::PoissonPipeline;
+use crate::averages::{AveragesPlan, plan_on_averages};
+use crate::dist::LeadTime;
+use crate::frontier::NoiseFlags;
+use crate::model::{CostBasis, CostMeasure, Model, Policy, Rule};
+use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
+
+/// Chance levels the words and the level table speak of.
+pub const LEVELS: [f64; 7] = [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99];
+
+/// The levels whose cheapest policies the figures single out.
+const CHOSEN_LEVELS: [f64; 4] = [0.5, 0.8, 0.9, 0.95];
+
+/// At most this many policies are singled out in the figures.
+const MAX_CHOSEN: usize = 5;
+
+/// One policy as the report shows it.
+#[derive(Debug, Clone)]
+pub struct PolicyView<'a> {
+    pub policy: &'a Policy,
+    pub summary: &'a Summary,
+    /// The cost measure and its standard error.
+    pub cost: MeanSe,
+    pub chance: Chance,
+    pub plan: AveragesPlan,
+    pub noise: Option<NoiseFlags>,
+}
+
+impl PolicyView<'_> {
+    pub fn name(&self) -> &str {
+        &self.policy.name
+    }
+
+    /// Per-trial costs on the measure's basis (capital in spend).
+    pub fn trial_costs(&self, basis: CostBasis) -> Vec<f64> {
+        self.summary.trial_costs(basis)
+    }
+
+    /// The plan-on-averages cost on the measure's basis, comparable with
+    /// the simulated mean (capital in spend).
+    pub fn plan_cost(&self, basis: CostBasis) -> f64 {
+        match basis {
+            CostBasis::Spend => self.plan.spend + self.summary.initial_stock_capital,
+            CostBasis::TotalWithPenalty => self.plan.cost,
+        }
+    }
+
+    /// Mean cost of part type `p` on the basis (capital in spend).
+    pub fn part_cost(&self, model: &Model, p: usize, basis: CostBasis) -> f64 {
+        let m = &self.summary.acc.per_part[p];
+        match basis {
+            CostBasis::Spend => {
+                m.parts_cost.mean()
+                    + m.labour_planned.mean()
+                    + m.labour_unplanned.mean()
+                    + m.holding.mean()
+                    + self.policy.parts[p].stock as f64 * model.parts[p].price
+            }
+            CostBasis::TotalWithPenalty => m.total.mean(),
+        }
+    }
+
+    /// Mean demands per trial of part type `p` (failures and planned
+    /// replacements; each places one order).
+    pub fn demands(&self, p: usize) -> f64 {
+        let m = &self.summary.acc.per_part[p];
+        m.failures.mean() + m.planned.mean()
+    }
+
+    /// Expected demand during one mean lead time of part type `p`, from
+    /// the simulated demand rate over the horizon.
+    pub fn lead_time_demand(&self, model: &Model, p: usize) -> f64 {
+        self.demands(p) / model.horizon * model.parts[p].lead_time.mean()
+    }
+
+    /// Chance that availability reaches at least `level`.
+    pub fn chance_at(&self, level: f64) -> f64 {
+        self.summary.chance_at(level).value
+    }
+}
+
+/// What kind of run the report describes.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Kind {
+    Frontier,
+    Evaluate,
+}
+
+/// The whole view of a result.
+#[derive(Debug, Clone)]
+pub struct View<'a> {
+    pub model: &'a Model,
+    pub kind: Kind,
+    pub target: f64,
+    pub measure: CostMeasure,
+    /// Cheapest first.
+    pub policies: Vec<PolicyView<'a>>,
+    /// Indices into `policies` of those singled out, cheapest first.
+    pub chosen: Vec<usize>,
+    /// The cheapest policy the plan on averages says meets the target.
+    pub planner_pick: Option<usize>,
+    /// Every policy simulated in the search (frontier runs only), on the
+    /// search trials.
+    pub searched: &'a [(Policy, MeanSe, Chance)],
+    pub search_trials: u64,
+}
+
+impl<'a> View<'a> {
+    /// Build the view; `policies` cheapest first.
+    pub fn new(
+        model: &'a Model,
+        kind: Kind,
+        target: f64,
+        measure: CostMeasure,
+        rows: Vec<(&'a Policy, &'a Summary, MeanSe, Chance, Option<NoiseFlags>)>,
+        searched: &'a [(Policy, MeanSe, Chance)],
+        search_trials: u64,
+    ) -> Self {
+        let policies: Vec<PolicyView<'a>> = rows
+            .into_iter()
+            .map(|(policy, summary, cost, chance, noise)| PolicyView {
+                policy,
+                summary,
+                cost,
+                chance,
+                plan: plan_on_averages(model, policy),
+                noise,
+            })
+            .collect();
+        let planner_pick = policies.iter().position(|p| p.plan.meets_target);
+        let chosen = choose(&policies, planner_pick);
+        View {
+            model,
+            kind,
+            target,
+            measure,
+            policies,
+            chosen,
+            planner_pick,
+            searched,
+            search_trials,
+        }
+    }
+
+    /// The cheapest policy with at least `level` chance, if any.
+    pub fn cheapest_at(&self, level: f64) -> Option<usize> {
+        cheapest_at(&self.policies, level)
+    }
+
+    /// The chosen policies' views.
+    pub fn chosen_views(&self) -> impl Iterator<Item = &PolicyView<'a>> {
+        self.chosen.iter().map(|&i| &self.policies[i])
+    }
+
+    /// The currency, with a leading space, or nothing.
+    pub fn cur(&self) -> String {
+        if self.model.currency.is_empty() {
+            String::new()
+        } else {
+            format!("\u{a0}{}", self.model.currency)
+        }
+    }
+
+    /// The currency in brackets, with a leading space, or nothing.
+    pub fn cur_paren(&self) -> String {
+        if self.model.currency.is_empty() {
+            String::new()
+        } else {
+            format!(" ({})", self.model.currency)
+        }
+    }
+}
+
+fn cheapest_at(policies: &[PolicyView<'_>], level: f64) -> Option<usize> {
+    policies
+        .iter()
+        .position(|p| p.chance.value >= level - 1e-12)
+}
+
+/// The policies the figures single out: the cheapest reaching each of the
+/// chosen chance levels, the one with the best chance, and the plan on
+/// averages' pick; at most [`MAX_CHOSEN`], cheapest first.
+fn choose(policies: &[PolicyView<'_>], planner_pick: Option<usize>) -> Vec<usize> {
+    if policies.is_empty() {
+        return Vec::new();
+    }
+    let mut picks: Vec<usize> = CHOSEN_LEVELS
+        .iter()
+        .filter_map(|&l| cheapest_at(policies, l))
+        .collect();
+    let best = (0..policies.len())
+        .max_by(|&a, &b| {
+            policies[a]
+                .chance
+                .value
+                .total_cmp(&policies[b].chance.value)
+                .then(b.cmp(&a))
+        })
+        .unwrap_or(0);
+    picks.push(best);
+    if let Some(p) = planner_pick {
+        picks.push(p);
+    }
+    picks.sort_unstable();
+    picks.dedup();
+    while picks.len() > MAX_CHOSEN {
+        // Drop the middle-most pick that is neither the best nor the
+        // planner's; keep the ends.
+        let drop = (1..picks.len() - 1)
+            .find(|&k| picks[k] != best && Some(picks[k]) != planner_pick)
+            .unwrap_or(1);
+        picks.remove(drop);
+    }
+    picks
+}
+
+/// Availability (or any figure) percentiles of a per-trial vector.
+pub fn percentiles(xs: &[f64], ps: &[f64]) -> Vec<f64> {
+    let s = sorted(xs);
+    ps.iter().map(|&p| percentile_sorted(&s, p)).collect()
+}
+
+/// Poisson quantile: the smallest `k` with `P(N <= k) >= q`, for a
+/// pipeline of mean `m` (Palm's theorem: the number of spares in
+/// resupply under one-for-one ordering is Poisson with mean demand rate x
+/// mean lead time, whatever the lead-time distribution).
+pub fn poisson_quantile(m: f64, q: f64) -> u32 {
+    let Ok(p) = PoissonPipeline::new(m.max(0.0)) else {
+        return 0;
+    };
+    let mut k = 0;
+    while p.cdf(k) < q && k < 100_000 {
+        k += 1;
+    }
+    k
+}
+
+/// The steady-state chance that a demand finds a spare on the shelf with
+/// stock `s` and pipeline mean `m`: `P(N <= s - 1)` (PASTA).
+pub fn poisson_fill_rate(m: f64, s: u32) -> f64 {
+    PoissonPipeline::new(m.max(0.0))
+        .map(|p| p.fill_rate(s))
+        .unwrap_or(f64::NAN)
+}
+
+// ---------------------------------------------------------------------------
+// Formats
+// ---------------------------------------------------------------------------
+
+/// A number with thousands separators and `decimals` decimals.
+pub fn num(x: f64, decimals: usize) -> String {
+    if !x.is_finite() {
+        return "-".to_string();
+    }
+    let s = format!("{:.*}", decimals, x.abs());
+    let (int, frac) = match s.find('.') {
+        Some(i) => (&s[..i], &s[i..]),
+        None => (s.as_str(), ""),
+    };
+    let mut out = String::new();
+    for (i, ch) in int.chars().enumerate() {
+        if i > 0 && (int.len() - i) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(ch);
+    }
+    let sign = if x < 0.0 && s.chars().any(|ch| ch != '0' && ch != '.') {
+        "-"
+    } else {
+        ""
+    };
+    format!("{sign}{out}{frac}")
+}
+
+/// Money in whole units with separators: `2,791,450`.
+pub fn money(x: f64) -> String {
+    num(x, 0)
+}
+
+/// Money in short form: `2.79 M`, `18.5 k`, `950`.
+pub fn money_short(x: f64) -> String {
+    let a = x.abs();
+    let sign = if x < 0.0 { "-" } else { "" };
+    if !x.is_finite() {
+        "-".to_string()
+    } else if a >= 1e9 {
+        format!("{sign}{:.2}\u{a0}G", a / 1e9)
+    } else if a >= 1e6 {
+        format!("{sign}{:.2}\u{a0}M", a / 1e6)
+    } else if a >= 1e5 {
+        format!("{sign}{:.0}\u{a0}k", a / 1e3)
+    } else if a >= 1e3 {
+        format!("{sign}{:.1}\u{a0}k", a / 1e3)
+    } else {
+        format!("{sign}{a:.0}")
+    }
+}
+
+/// A chance as a percentage: whole percent, one decimal near 0 and 100.
+pub fn chance_pct(x: f64) -> String {
+    if !x.is_finite() {
+        return "-".to_string();
+    }
+    // Rounded to a tenth first, so 1e-18 reads 0 % and 0.99999 reads 100 %.
+    let p = (1000.0 * x).round() / 10.0;
+    if (p > 0.0 && p < 1.0) || (p > 99.0 && p < 100.0) {
+        format!("{p:.1}\u{a0}%")
+    } else {
+        format!("{p:.0}\u{a0}%")
+    }
+}
+
+/// An availability (or share) as a percentage with one decimal.
+pub fn pct1(x: f64) -> String {
+    if !x.is_finite() {
+        return "-".to_string();
+    }
+    format!("{:.1}\u{a0}%", 100.0 * x)
+}
+
+/// A share as a percentage with `d` decimals, trailing zeros trimmed:
+/// `92 %`, `92.5 %`.
+pub fn pct_trim(x: f64, d: usize) -> String {
+    let s = format!("{:.*}", d, 100.0 * x);
+    let s = if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    };
+    format!("{s}\u{a0}%")
+}
+
+/// Hours with separators: `8,000 h`.
+pub fn hours(x: f64) -> String {
+    format!("{}\u{a0}h", num(x, 0))
+}
+
+/// A scenario name for people: underscores read as spaces.
+pub fn display(name: &str) -> String {
+    name.replace('_', " ")
+}
+
+/// Small counts in words: `one`, `two`, ..., then digits.
+pub fn count_words(n: u32) -> String {
+    const W: [&str; 11] = [
+        "no", "one", "two", "three", "four", "five", "six", "seven", "eight", "nine", "ten",
+    ];
+    W.get(n as usize)
+        .map(|s| s.to_string())
+        .unwrap_or_else(|| n.to_string())
+}
+
+/// A rule in words: `run to failure`, `age replacement at 8,000 h`,
+/// `block replacement every 6,000 h`.
+pub fn rule_words(r: Rule) -> String {
+    match r {
+        Rule::RunToFailure => "run to failure".to_string(),
+        Rule::Age(t) => format!("age replacement at {}", hours(t)),
+        Rule::Block(t) => format!("block replacement every {}", hours(t)),
+    }
+}
+
+/// A rule in a table cell: `RTF`, `age 8,000 h`, `block 6,000 h`.
+pub fn rule_short(r: Rule) -> String {
+    match r {
+        Rule::RunToFailure => "run\u{a0}to\u{a0}failure".to_string(),
+        Rule::Age(t) => format!("age\u{a0}{}", hours(t)),
+        Rule::Block(t) => format!("block\u{a0}{}", hours(t)),
+    }
+}
+
+/// A lead-time distribution in words.
+pub fn lead_time_words(l: &LeadTime) -> String {
+    match *l {
+        LeadTime::Fixed { hours: h } => format!("always {}", hours(h)),
+        LeadTime::Lognormal { median, log_sd } => format!(
+            "lognormal, median {}, mean {} (log-sd {})",
+            hours(median),
+            hours(l.mean()),
+            trim(log_sd, 2)
+        ),
+        LeadTime::Gamma { mean, cv } => {
+            format!(
+                "gamma, mean {} (coefficient of variation {})",
+                hours(mean),
+                trim(cv, 2)
+            )
+        }
+    }
+}
+
+/// A number with at most `d` decimals, trailing zeros trimmed.
+pub fn trim(x: f64, d: usize) -> String {
+    let s = format!("{x:.d$}");
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn formats() {
+        // Units are joined by a no-break space, shown here as `~`.
+        let f = |s: String| s.replace('\u{a0}', "~");
+        assert_eq!(f(money_short(2_791_450.0)), "2.79~M");
+        assert_eq!(f(money_short(18_530.0)), "18.5~k");
+        assert_eq!(f(money_short(380_400.0)), "380~k");
+        assert_eq!(f(money_short(-950.0)), "-950");
+        assert_eq!(f(chance_pct(0.7604)), "76~%");
+        assert_eq!(f(chance_pct(0.9966)), "99.7~%");
+        assert_eq!(f(chance_pct(1.0)), "100~%");
+        assert_eq!(f(chance_pct(8.7e-19)), "0~%");
+        assert_eq!(f(chance_pct(0.004)), "0.4~%");
+        assert_eq!(f(pct_trim(0.925, 1)), "92.5~%");
+        assert_eq!(f(pct_trim(0.92, 1)), "92~%");
+        assert_eq!(f(hours(8000.0)), "8,000~h");
+        assert_eq!(num(1234567.0, 0), "1,234,567");
+        assert_eq!(count_words(2), "two");
+        assert_eq!(count_words(12), "12");
+    }
+
+    #[test]
+    fn poisson_quantiles_match_tables() {
+        // Poisson cumulative table (e.g. CRC Standard Probability and
+        // Statistics Tables; figures from memory, checked by summing the
+        // pmf by hand): mean 2, P(N <= 4) = 0.9473, P(N <= 5) = 0.9834, so
+        // the 95 % quantile is 5 and the 90 % quantile is 4.
+        assert_eq!(poisson_quantile(2.0, 0.95), 5);
+        assert_eq!(poisson_quantile(2.0, 0.90), 4);
+        // Mean 0.5: P(N = 0) = e^-0.5 = 0.6065, so the 50 % quantile is 0.
+        assert_eq!(poisson_quantile(0.5, 0.5), 0);
+        // Fill rate with s = 1: P(N = 0) = e^-m.
+        assert!((poisson_fill_rate(0.5, 1) - (-0.5f64).exp()).abs() < 1e-12);
+    }
+}
