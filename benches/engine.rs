@@ -2,17 +2,17 @@
 //!
 //! Reports, for B1's reference policy: trials per second, events per
 //! second, and, measured in the same run, the time needed only to draw the
-//! random numbers those trials use (the same count of lives and lead times
-//! per part type, from the same kind of streams). With `-- --million` it
-//! also runs 1 000 000 trials and reports the peak resident memory.
+//! random numbers those trials use: the very same draws (lives per position,
+//! initial ages, lead times per part type), from the same streams, with
+//! nothing else ([`Simulator::draw_only`]). Each is timed three times,
+//! alternately, and the median is reported. With `-- --million` it runs
+//! 1 000 000 trials instead and reports the peak resident memory.
 
 use std::time::Instant;
 
 use rayon::prelude::*;
-use wearout::dist::Life;
-use wearout::run::{Quiet, evaluate, for_each_trial};
-use wearout::sim::Simulator;
-use wearout::stream::{StreamKey, TrialSeed};
+use wearout::run::{Quiet, evaluate};
+use wearout::sim::{DrawCounts, Simulator, Workspace};
 
 fn peak_rss_mb() -> Option<f64> {
     let s = std::fs::read_to_string("/proc/self/status").ok()?;
@@ -21,72 +21,93 @@ fn peak_rss_mb() -> Option<f64> {
     Some(kb / 1024.0)
 }
 
+fn median(mut v: Vec<f64>) -> f64 {
+    v.sort_by(f64::total_cmp);
+    v[v.len() / 2]
+}
+
 fn main() {
     let million = std::env::args().any(|a| a == "--million");
     let path = concat!(env!("CARGO_MANIFEST_DIR"), "/scenarios/b1.toml");
     let model = wearout::scenario::load(std::path::Path::new(path)).expect("b1 loads");
     let policy = model.policy("reference").expect("reference policy").clone();
     let sim = Simulator::new(&model, &policy);
+
+    if million {
+        let m: u64 = 1_000_000;
+        println!(
+            "B1 reference policy, {m} trials, {} threads",
+            rayon::current_num_threads()
+        );
+        let t = Instant::now();
+        let s = evaluate(&model, &policy, 0..m, model.target, &Quiet).expect("runs");
+        let secs = t.elapsed().as_secs_f64();
+        println!(
+            "  {secs:.1} s, {:.0} trials/s, availability {:.5} ± {:.6}, peak resident memory {:.1} MB",
+            m as f64 / secs,
+            s.acc.availability.mean(),
+            s.acc.availability.se(),
+            peak_rss_mb().unwrap_or(f64::NAN)
+        );
+        return;
+    }
+
     let n: u64 = 10_000;
     println!(
-        "B1 reference policy, {} trials, {} threads",
-        n,
+        "B1 reference policy, {n} trials, {} threads",
         rayon::current_num_threads()
     );
+
+    // The draws each trial takes, and its events.
+    let mut ws = Workspace::default();
+    let mut events = 0u64;
+    let counts: Vec<DrawCounts> = (0..n)
+        .map(|t| {
+            events += sim.run(t, &mut ws).events;
+            ws.draw_counts()
+        })
+        .collect();
+    let draws: u64 = counts
+        .iter()
+        .map(|c| {
+            c.lives
+                .iter()
+                .chain(&c.leads)
+                .map(|&k| k as u64)
+                .sum::<u64>()
+        })
+        .sum();
 
     // Warm up.
     let _ = evaluate(&model, &policy, 0..500, model.target, &Quiet);
 
-    // 1. The whole engine, as `wearout evaluate` runs it.
-    let t0 = Instant::now();
-    let summary = evaluate(&model, &policy, 0..n, model.target, &Quiet).expect("runs");
-    let engine_s = t0.elapsed().as_secs_f64();
+    let (mut engine, mut rng) = (Vec::new(), Vec::new());
+    let mut checksum = 0.0;
+    let mut availability = (0.0, 0.0);
+    for _ in 0..3 {
+        // 1. The whole engine, as `wearout evaluate` runs it.
+        let t0 = Instant::now();
+        let summary = evaluate(&model, &policy, 0..n, model.target, &Quiet).expect("runs");
+        engine.push(t0.elapsed().as_secs_f64());
+        availability = (
+            summary.acc.availability.mean(),
+            summary.acc.availability.se(),
+        );
 
-    // Count events and the draws each trial used.
-    let installed = model.installed_count();
-    let mut events = 0u64;
-    let mut draws: Vec<(u64, Vec<u64>, Vec<u64>)> = Vec::with_capacity(n as usize);
-    for_each_trial(&sim, 0..n, &Quiet, |t, o| {
-        events += o.events;
-        let lives: Vec<u64> = o
-            .parts
-            .iter()
-            .zip(&installed)
-            .map(|(p, &k)| k as u64 + p.failures as u64 + p.planned as u64)
-            .collect();
-        let leads: Vec<u64> = o.parts.iter().map(|p| p.orders as u64).collect();
-        draws.push((t, lives, leads));
-    });
-
-    // 2. Only the random numbers: the same lives and lead times, drawn from
-    // the same streams and distributions, nothing else.
-    let lives: Vec<Life> = model.parts.iter().map(|p| p.life).collect();
-    let t1 = Instant::now();
-    let checksum: f64 = draws
-        .par_iter()
-        .map(|(t, nl, nd)| {
-            let seed = TrialSeed::new(model.seed, *t);
-            let mut acc = 0.0;
-            for (p, (&k, &d)) in nl.iter().zip(nd).enumerate() {
-                let mut s = seed.stream(StreamKey::Lives {
-                    unit: p as u32,
-                    position: 0,
-                });
-                for _ in 0..k {
-                    acc += lives[p].sample_residual(0.0, &mut s);
-                }
-                let mut s = seed.stream(StreamKey::LeadTimes { part: p as u32 });
-                for _ in 0..d {
-                    acc += model.parts[p].lead_time.sample(&mut s);
-                }
-            }
-            acc
-        })
-        .sum();
-    let rng_s = t1.elapsed().as_secs_f64();
+        // 2. Only the random numbers: the same draws, nothing else.
+        let t1 = Instant::now();
+        checksum = counts
+            .par_iter()
+            .enumerate()
+            .map_init(Vec::new, |lives, (t, c)| sim.draw_only(t as u64, c, lives))
+            .sum::<f64>();
+        rng.push(t1.elapsed().as_secs_f64());
+    }
+    let (engine_s, rng_s) = (median(engine.clone()), median(rng.clone()));
 
     println!(
-        "  engine: {engine_s:.3} s wall, {:.0} trials/s",
+        "  engine: {engine_s:.3} s wall (runs {:.3?}), {:.0} trials/s",
+        engine,
         n as f64 / engine_s
     );
     println!(
@@ -95,28 +116,17 @@ fn main() {
         events as f64 / engine_s / 1e6
     );
     println!(
-        "  random numbers alone: {rng_s:.3} s wall (checksum {checksum:.3e}); engine / random = {:.2}",
-        engine_s / rng_s
+        "  random numbers alone: {rng_s:.3} s wall (runs {rng:.3?}), {draws} draws ({:.0} per trial, checksum {checksum:.6e})",
+        draws as f64 / n as f64
     );
+    println!("  engine / random numbers = {:.2}", engine_s / rng_s);
     println!(
         "  availability mean {:.5} ± {:.5}",
-        summary.acc.availability.mean(),
-        summary.acc.availability.se()
+        availability.0, availability.1
     );
     if let Some(mb) = peak_rss_mb() {
-        println!("  peak resident memory so far: {mb:.1} MB");
-    }
-
-    if million {
-        let m: u64 = 1_000_000;
-        let t = Instant::now();
-        let s = evaluate(&model, &policy, 0..m, model.target, &Quiet).expect("runs");
-        let secs = t.elapsed().as_secs_f64();
         println!(
-            "  1 000 000 trials: {secs:.1} s, availability {:.5} ± {:.6}, peak resident memory {:.1} MB",
-            s.acc.availability.mean(),
-            s.acc.availability.se(),
-            peak_rss_mb().unwrap_or(f64::NAN)
+            "  peak resident memory: {mb:.1} MB (the draw counts kept for the comparison included)"
         );
     }
 }

@@ -11,6 +11,32 @@
 use rand::Rng;
 use rand_distr::Distribution;
 use statrs::function::gamma::{gamma, gamma_lr, gamma_ur};
+
+/// The regularised upper incomplete gamma function `Q(a, x)`, with its
+/// limits where statrs refuses (and would panic): 1 at `x <= 0` (e.g. a
+/// `t / scale` that underflows) and 0 at `x = infinity` (one that
+/// overflows). `a` is a validated shape (positive, finite).
+fn upper_gamma(a: f64, x: f64) -> f64 {
+    if x <= 0.0 {
+        1.0
+    } else if x == f64::INFINITY {
+        0.0
+    } else {
+        gamma_ur(a, x)
+    }
+}
+
+/// The regularised lower incomplete gamma function `P(a, x)`, with its
+/// limits: 0 at `x <= 0`, 1 at `x = infinity` (see [`upper_gamma`]).
+fn lower_gamma(a: f64, x: f64) -> f64 {
+    if x <= 0.0 {
+        0.0
+    } else if x == f64::INFINITY {
+        1.0
+    } else {
+        gamma_lr(a, x)
+    }
+}
 use thiserror::Error;
 
 /// Operating hours.
@@ -309,7 +335,7 @@ impl Life {
                 }
             }
             Life::Lognormal { mu, sigma } => normal_sf((t.ln() - mu) / sigma),
-            Life::Gamma { shape, scale } => gamma_ur(shape, t / scale),
+            Life::Gamma { shape, scale } => upper_gamma(shape, t / scale),
             Life::Exponential { mean } => (-t / mean).exp(),
         }
     }
@@ -332,7 +358,7 @@ impl Life {
                 }
             }
             Life::Lognormal { mu, sigma } => normal_sf(-(t.ln() - mu) / sigma),
-            Life::Gamma { shape, scale } => gamma_lr(shape, t / scale),
+            Life::Gamma { shape, scale } => lower_gamma(shape, t / scale),
             Life::Exponential { mean } => -(-t / mean).exp_m1(),
         }
     }
@@ -421,7 +447,7 @@ impl Life {
                     t
                 } else {
                     let z = ((t - location) / scale).powf(shape);
-                    location + scale * gamma(1.0 + 1.0 / shape) * gamma_lr(1.0 / shape, z)
+                    location + scale * gamma(1.0 + 1.0 / shape) * lower_gamma(1.0 / shape, z)
                 }
             }
             Life::Lognormal { mu, sigma } => {
@@ -430,7 +456,7 @@ impl Life {
                 t * normal_sf(z) + self.mean() * normal_sf(-(z - sigma))
             }
             Life::Gamma { shape, scale } => {
-                t * self.sf(t) + shape * scale * gamma_lr(shape + 1.0, t / scale)
+                t * self.sf(t) + shape * scale * lower_gamma(shape + 1.0, t / scale)
             }
             Life::Exponential { mean } => -mean * (-t / mean).exp_m1(),
         }
@@ -464,7 +490,12 @@ impl Life {
                 scale,
                 location,
             } => {
-                let z0 = ((age - location).max(0.0) / scale).powf(shape);
+                // A part not yet past the location has z0 = 0 (skip the power).
+                let z0 = if age > location {
+                    ((age - location) / scale).powf(shape)
+                } else {
+                    0.0
+                };
                 let t = location + scale * (z0 - u.ln()).powf(1.0 / shape);
                 (t - age).max(0.0)
             }
@@ -599,6 +630,20 @@ mod tests {
 
     fn close(a: f64, b: f64, tol: f64) {
         assert!((a - b).abs() <= tol, "{a} vs {b} (tol {tol})");
+    }
+
+    #[test]
+    fn gamma_survival_survives_extreme_ratios() {
+        // t / scale underflowing to 0 or overflowing to infinity: the
+        // limits 1 and 0, not a panic inside statrs (found by fuzzing).
+        let wide = Life::gamma(2.0, 1e300).unwrap();
+        assert_eq!(wide.sf(1e-300), 1.0);
+        assert_eq!(wide.cdf(1e-300), 0.0);
+        let narrow = Life::gamma(2.0, 1e-300).unwrap();
+        assert_eq!(narrow.sf(1e300), 0.0);
+        assert_eq!(narrow.cdf(1e300), 1.0);
+        assert!(narrow.integral_sf(1e300).is_finite());
+        assert!(wide.integral_sf(1e-300).is_finite());
     }
 
     #[test]

@@ -15,8 +15,8 @@
 //! `H / (E[min(X, T)] + d)` times over the horizon `H` (Wald's identity for
 //! the truncated cycles; `X` the life, `T` the interval or the horizon, `d`
 //! the shorter repair time), each renewal costing about
-//! [`EVENTS_PER_RENEWAL`] events (the failure or due event, the repair's
-//! completion, the order and its arrival). `E[min(X, T)]` is a lower
+//! [`EVENTS_PER_RENEWAL`] events (the failure or due event, and the awaited
+//! arrival when the store is empty). `E[min(X, T)]` is a lower
 //! Riemann sum of the survival function on a geometric grid, which stays
 //! finite and conservative for absurd parameters (a Weibull shape of 1e-6,
 //! a mean life of 1e-300 h) where closed forms overflow.
@@ -25,20 +25,23 @@ use crate::frontier::FrontierConfig;
 use crate::model::{Model, PartPolicy, Policy, Rule};
 use crate::run::BLOCK;
 
-/// Events per renewal of a position: its failure or due event, the
-/// replacement's completion, the resupply order and its arrival.
-pub const EVENTS_PER_RENEWAL: f64 = 4.0;
+/// Events per renewal of a position: its failure or due event and, when
+/// the store is empty, the awaited arrival (counted as if always). A
+/// replacement that nothing can interrupt is finished within its demand's
+/// event, and an arrival nobody waits for is booked when the store is next
+/// used, so neither is an event of its own.
+pub const EVENTS_PER_RENEWAL: f64 = 2.0;
 /// Engine time per event and per position of the event's unit, in
 /// nanoseconds, on one core of the project's 2-core machine (calibrated on
 /// B1's reference policy: see DEVELOPERS.md, "Scale").
-pub const NS_PER_EVENT: f64 = 60.0;
+pub const NS_PER_EVENT: f64 = 120.0;
 /// Engine time per position per trial (drawing the initial ages and lives;
 /// measured on a fleet of a million units, where memory traffic dominates).
 pub const NS_PER_POSITION: f64 = 300.0;
 /// The most events one trial may handle: about 20 s on one core. A trial is
 /// the unit of work that cannot be split or interrupted early; past this a
 /// scenario is almost surely mistyped (hours for years, a life in minutes).
-pub const MAX_EVENTS_PER_TRIAL: f64 = 3.0e8;
+pub const MAX_EVENTS_PER_TRIAL: f64 = 1.5e8;
 /// The longest run one process is allowed: 30 days.
 pub const MAX_SECONDS: f64 = 30.0 * 86_400.0;
 /// Runs estimated past this many seconds are announced before they start.

@@ -17,8 +17,7 @@
 //! What the replacement rules decide is asked of [`Rule`] (when is a part
 //! due?); the loop itself only moves clocks, parts and spares.
 
-use std::cmp::Reverse;
-use std::collections::{BinaryHeap, VecDeque};
+use std::collections::VecDeque;
 
 use crate::dist::{Hours, Life};
 use crate::model::{InitialAge, Model, PartPolicy, Policy, Rule};
@@ -27,7 +26,7 @@ use crate::stream::{Stream, StreamKey, TrialSeed};
 
 /// Event classes in the order they are handled at the same instant.
 const CLASS_COMPLETION: u64 = 0;
-const CLASS_ARRIVAL: u64 = 1;
+// Class 1: spare arrivals, which are kept apart (see `Arrivals`).
 const CLASS_FAILURE: u64 = 2;
 const CLASS_DUE: u64 = 3;
 
@@ -37,50 +36,17 @@ const CAUSE_UNPLANNED: u8 = 1;
 const CAUSE_PLANNED: u8 = 2;
 const CAUSE_NONE: u8 = 3;
 
-/// A scheduled completion or spare arrival (unit events live in
-/// [`Tourney`]), packed as one sortable key: `time bits << 64 | tie`, where
-/// `tie = class << 56 | id << 16 | position` gives the same-instant order.
-/// Times are never negative, so their bit patterns sort as numbers.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
-struct Event(u128);
-
-impl Event {
-    #[inline]
-    fn new(time: Hours, tie: u64) -> Self {
-        Event(((time.to_bits() as u128) << 64) | tie as u128)
-    }
-    #[inline]
-    fn time(&self) -> Hours {
-        f64::from_bits((self.0 >> 64) as u64)
-    }
-    #[inline]
-    fn tie(&self) -> u64 {
-        self.0 as u64
-    }
-    fn class(&self) -> u64 {
-        self.tie() >> 56
-    }
-    fn id(&self) -> usize {
-        ((self.tie() >> 16) & 0xFF_FFFF_FFFF) as usize
-    }
-    fn position(&self) -> usize {
-        (self.tie() & 0xFFFF) as usize
-    }
-}
-
-fn tie(class: u64, id: usize, position: usize) -> u64 {
-    (class << 56) | ((id as u64) << 16) | position as u64
-}
-
-/// A tournament tree over the units' next own events (failure, due, hard
-/// limit): the earliest is at the root, and changing one unit's next event
-/// costs `log2(units)` comparisons with no stale entries. A node holds the
+/// A tournament tree over the units' next own events (while up: failure,
+/// due or hard limit; while down: the earliest end of a replacement under
+/// way). The earliest is at the root, and changing one unit's event costs
+/// `log2(units)` comparisons with no stale entries. A node holds the
 /// winner's key `time bits << 64 | class << 32 | unit`, so ties go to the
-/// lower class, then to the lower unit index (times are never negative, so
-/// their bit patterns sort as numbers).
+/// lower class, then to the lower unit (times are never negative, so their
+/// bit patterns sort as numbers). Awaited spare arrivals are kept apart, in
+/// [`Arrivals`].
 #[derive(Debug, Default)]
 struct Tourney {
-    /// Number of leaves (a power of two); node `n + u` is unit `u`'s leaf.
+    /// Number of leaves (a power of two); node `n + i` is leaf `i`.
     n: usize,
     node: Vec<u128>,
 }
@@ -91,12 +57,12 @@ fn tourney_key(time: Hours, class: u64, unit: usize) -> u128 {
 }
 
 impl Tourney {
-    fn reset(&mut self, units: usize) {
-        self.n = units.max(1).next_power_of_two();
+    fn reset(&mut self, leaves: usize) {
+        self.n = leaves.max(1).next_power_of_two();
         self.node.clear();
         self.node.resize(2 * self.n, u128::MAX);
-        for u in 0..units {
-            self.node[self.n + u] = tourney_key(f64::INFINITY, CLASS_DUE, u);
+        for i in 0..leaves {
+            self.node[self.n + i] = tourney_key(f64::INFINITY, CLASS_DUE, i);
         }
         for i in (1..self.n).rev() {
             self.node[i] = self.node[2 * i].min(self.node[2 * i + 1]);
@@ -104,14 +70,15 @@ impl Tourney {
     }
 
     #[inline]
-    fn set(&mut self, unit: usize, time: Hours, class: u64) {
-        let mut i = self.n + unit;
-        self.node[i] = tourney_key(time, class, unit);
+    fn set(&mut self, leaf: usize, time: Hours, class: u64) {
+        let mut i = self.n + leaf;
+        let mut cur = tourney_key(time, class, leaf);
+        self.node[i] = cur;
         while i > 1 {
             let sibling = self.node[i ^ 1];
-            let mine = self.node[i];
             i /= 2;
-            self.node[i] = mine.min(sibling);
+            cur = if sibling < cur { sibling } else { cur };
+            self.node[i] = cur;
         }
     }
 
@@ -126,6 +93,71 @@ impl Tourney {
             (k & 0xFFFF_FFFF) as usize,
         )
     }
+}
+
+/// The next awaited spare arrival of each part type (infinite while no
+/// demand for it waits), and the earliest of them. Part types are few, so
+/// a change rescans them all.
+#[derive(Debug, Default)]
+struct Arrivals {
+    at: Vec<Hours>,
+    /// The earliest: (time, part); ties go to the lower part index.
+    first: (Hours, usize),
+}
+
+impl Arrivals {
+    fn reset(&mut self, parts: usize) {
+        self.at.clear();
+        self.at.resize(parts, f64::INFINITY);
+        self.first = (f64::INFINITY, 0);
+    }
+
+    #[inline]
+    fn set(&mut self, part: usize, time: Hours) {
+        let old = self.at[part];
+        self.at[part] = time;
+        if time < self.first.0 || (time == self.first.0 && part < self.first.1) {
+            self.first = (time, part);
+        } else if part == self.first.1 && time != old {
+            let mut best = (f64::INFINITY, 0);
+            for (p, &t) in self.at.iter().enumerate() {
+                if t < best.0 {
+                    best = (t, p);
+                }
+            }
+            self.first = best;
+        }
+    }
+}
+
+/// The least of `xs` (infinite when empty), in four independent lanes so
+/// that the compiler can use vector minimums.
+#[inline]
+fn min_of(xs: &[f64]) -> f64 {
+    let mut m = [f64::INFINITY; 4];
+    let mut chunks = xs.chunks_exact(4);
+    for c in &mut chunks {
+        for k in 0..4 {
+            m[k] = if c[k] < m[k] { c[k] } else { m[k] };
+        }
+    }
+    for (k, &x) in chunks.remainder().iter().enumerate() {
+        m[k] = if x < m[k] { x } else { m[k] };
+    }
+    let a = if m[1] < m[0] { m[1] } else { m[0] };
+    let b = if m[3] < m[2] { m[3] } else { m[2] };
+    if b < a { b } else { a }
+}
+
+/// The index of the first element of `xs` equal to `x` (0 if none),
+/// scanned to the end without an early exit (which would be mispredicted).
+#[inline]
+fn first_index_of(xs: &[f64], x: f64) -> usize {
+    let mut at = 0;
+    for (j, &v) in xs.iter().enumerate().rev() {
+        at = if v == x { j } else { at };
+    }
+    at
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -154,6 +186,8 @@ struct Pos {
     /// Reading at which it reaches its hard life limit (infinite: none).
     limit_op: Hours,
     lives: Stream,
+    /// Lives drawn for this position in this trial (the first included).
+    drawn: u32,
 }
 
 #[derive(Debug, Clone)]
@@ -166,7 +200,10 @@ struct UnitState {
     n_pos: usize,
     /// Number of positions that hold the unit down.
     holding_down: u32,
-    /// The unit's next own event while it is up: position and reading.
+    /// Number of positions due for planned replacement and waiting for a
+    /// spare (their parts still work).
+    waiting_planned: u32,
+    /// The unit's next own event: its position, and (while up) its reading.
     next_pos: usize,
     next_op: Hours,
 }
@@ -182,6 +219,12 @@ struct Store {
     area: f64,
     last: Hours,
     leads: Stream,
+    /// Orders on their way that arrive before the horizon, as (arrival
+    /// time, order number), latest first. While no demand waits, an arrival
+    /// only puts a spare on the shelf, so it is booked when the store is
+    /// next used (or at the horizon); while demands wait, the earliest is an
+    /// event (in [`Arrivals`]).
+    pending: Vec<(Hours, u64)>,
 }
 
 /// Which part types take part in a run. Positions of an inactive part type
@@ -208,13 +251,16 @@ impl ActiveParts {
 /// Reusable per-thread state of the event loop.
 #[derive(Debug, Default)]
 pub struct Workspace {
-    heap: BinaryHeap<Reverse<Event>>,
     tourney: Tourney,
+    arrivals: Arrivals,
     /// Per position, derived from its status (kept by `Run::set_status`):
     /// the reading at which it fails (infinite unless working), the reading
     /// of its next due or hard-limit event, and its down-time cause rank.
     fail_at: Vec<Hours>,
     due_at: Vec<Hours>,
+    /// Per position: wall time at which its replacement ends (infinite
+    /// unless one is under way).
+    done_at: Vec<Hours>,
     cause: Vec<u8>,
     units: Vec<UnitState>,
     pos: Vec<Pos>,
@@ -225,6 +271,31 @@ pub struct Workspace {
     on_order: Vec<u64>,
     /// The trial's drawn lives per part type (parameter uncertainty).
     trial_lives: Vec<Life>,
+}
+
+/// How many random draws the last trial run on a [`Workspace`] took: lives
+/// per position (in unit, then position order) and lead times per part type.
+/// For measuring the engine against the bare cost of its random numbers
+/// ([`Simulator::draw_only`]).
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct DrawCounts {
+    pub lives: Vec<u32>,
+    pub leads: Vec<u32>,
+}
+
+impl Workspace {
+    /// The draws of the last trial run on this workspace.
+    pub fn draw_counts(&self) -> DrawCounts {
+        DrawCounts {
+            lives: self.pos.iter().map(|p| p.drawn).collect(),
+            leads: self
+                .stores
+                .iter()
+                .zip(&self.orders)
+                .map(|(_, &k)| k as u32)
+                .collect(),
+        }
+    }
 }
 
 /// Simulates trials of one model under one policy.
@@ -238,6 +309,9 @@ pub struct Simulator<'m> {
     /// True when trials draw their own lives (parameter uncertainty on and
     /// some part type uncertain).
     draws_lives: bool,
+    /// Handle every completion and every arrival as an event of its own
+    /// (no shortcuts); for tests that check the shortcuts change nothing.
+    all_events: bool,
 }
 
 impl<'m> Simulator<'m> {
@@ -260,7 +334,16 @@ impl<'m> Simulator<'m> {
                         .as_ref()
                         .is_some_and(|u| u.is_uncertain())
                 }),
+            all_events: false,
         }
+    }
+
+    /// The same simulator without the event loop's two shortcuts: every
+    /// replacement's completion and every spare arrival becomes an event of
+    /// its own. Slower, and gives the same results; tests compare the two.
+    pub fn with_all_events(mut self) -> Self {
+        self.all_events = true;
+        self
     }
 
     /// True when each trial draws its own lives ([`Model::parameter_uncertainty`]
@@ -313,6 +396,49 @@ impl<'m> Simulator<'m> {
         run.finish()
     }
 
+    /// Draw the random numbers trial `trial` uses, and nothing else: the
+    /// trial's lives per part type, every position's initial age, its first
+    /// remaining life and its `counts.lives` - 1 later lives, and each part
+    /// type's `counts.leads` lead times, from the same streams as
+    /// [`Simulator::run`]. Returns their sum, so that the work is not
+    /// optimised away. `counts` comes from [`Workspace::draw_counts`] after
+    /// running the same trial.
+    pub fn draw_only(&self, trial: u64, counts: &DrawCounts, lives: &mut Vec<Life>) -> f64 {
+        let model = self.model;
+        let seed = TrialSeed::new(model.seed, trial);
+        self.trial_lives(&seed, lives);
+        let mut sum = 0.0;
+        let mut ages = seed.stream(StreamKey::InitialAges);
+        let mut idx = 0;
+        for (u, unit) in model.units.iter().enumerate() {
+            let group = &model.groups[unit.group];
+            for (j, &part) in unit.parts.iter().enumerate() {
+                let age =
+                    draw_initial_age(&group.initial_age[part], unit.index_in_group, &mut ages);
+                let n = counts.lives.get(idx).copied().unwrap_or(0);
+                idx += 1;
+                if n == 0 {
+                    continue;
+                }
+                let mut stream = seed.stream(StreamKey::Lives {
+                    unit: u as u32,
+                    position: j as u32,
+                });
+                sum += lives[part].sample_residual(age, &mut stream);
+                for _ in 1..n {
+                    sum += lives[part].sample_residual(0.0, &mut stream);
+                }
+            }
+        }
+        for (p, part) in model.parts.iter().enumerate() {
+            let mut stream = seed.stream(StreamKey::LeadTimes { part: p as u32 });
+            for _ in 0..counts.leads.get(p).copied().unwrap_or(0) {
+                sum += part.lead_time.sample(&mut stream);
+            }
+        }
+        sum
+    }
+
     /// Like [`Simulator::run`], asserting the model's invariants after every
     /// event (stock identity, hold counts). For tests; panics on a broken one.
     pub fn run_checked(&self, trial: u64, ws: &mut Workspace) -> TrialOutcome {
@@ -361,12 +487,13 @@ impl<'a, 'm> Run<'a, 'm> {
     ) -> Self {
         let model = sim.model;
         let n_parts = model.parts.len();
-        ws.heap.clear();
         ws.tourney.reset(model.units.len());
+        ws.arrivals.reset(n_parts);
         ws.units.clear();
         ws.pos.clear();
         ws.fail_at.clear();
         ws.due_at.clear();
+        ws.done_at.clear();
         ws.cause.clear();
         ws.orders.clear();
         ws.orders.resize(n_parts, 0);
@@ -382,6 +509,7 @@ impl<'a, 'm> Run<'a, 'm> {
                 s.area = 0.0;
                 s.last = 0.0;
                 s.leads = leads;
+                s.pending.clear();
             } else {
                 ws.stores.push(Store {
                     on_hand: pp.stock,
@@ -390,6 +518,7 @@ impl<'a, 'm> Run<'a, 'm> {
                     area: 0.0,
                     last: 0.0,
                     leads,
+                    pending: Vec::new(),
                 });
             }
         }
@@ -404,7 +533,8 @@ impl<'a, 'm> Run<'a, 'm> {
                     unit: u as u32,
                     position: j as u32,
                 });
-                let (fail_op, due_op, limit_op) = if sim.active.is_active(part) {
+                let active = sim.active.is_active(part);
+                let (fail_op, due_op, limit_op) = if active {
                     let life = lives[part].sample_residual(age, &mut lives_stream);
                     let rule = sim.policy[part].rule;
                     let limit = model.parts[part].hard_limit;
@@ -423,9 +553,11 @@ impl<'a, 'm> Run<'a, 'm> {
                     due_op,
                     limit_op,
                     lives: lives_stream,
+                    drawn: active as u32,
                 });
                 ws.fail_at.push(fail_op);
                 ws.due_at.push(due_op.min(limit_op));
+                ws.done_at.push(f64::INFINITY);
                 ws.cause.push(CAUSE_NONE);
             }
             ws.units.push(UnitState {
@@ -434,6 +566,7 @@ impl<'a, 'm> Run<'a, 'm> {
                 first_pos: first,
                 n_pos: unit.parts.len(),
                 holding_down: 0,
+                waiting_planned: 0,
                 next_pos: 0,
                 next_op: f64::INFINITY,
             });
@@ -453,8 +586,9 @@ impl<'a, 'm> Run<'a, 'm> {
         run
     }
 
-    /// Change a position's status and the figures derived from it.
-    #[inline]
+    /// Change a position's status and the figures derived from it (inlined,
+    /// so that a constant status costs no branch).
+    #[inline(always)]
     fn set_status(&mut self, idx: usize, status: Status) {
         let p = &mut self.ws.pos[idx];
         p.status = status;
@@ -462,41 +596,55 @@ impl<'a, 'm> Run<'a, 'm> {
             Status::Working => (p.fail_op, p.due_op.min(p.limit_op), CAUSE_NONE),
             Status::WaitingPlanned => (p.fail_op, p.limit_op, CAUSE_NONE),
             Status::Failed | Status::Grounded => (f64::INFINITY, f64::INFINITY, CAUSE_WAITING),
-            Status::Replacing { planned: false } => (f64::INFINITY, f64::INFINITY, CAUSE_UNPLANNED),
-            Status::Replacing { planned: true } => (f64::INFINITY, f64::INFINITY, CAUSE_PLANNED),
+            Status::Replacing { planned } => (
+                f64::INFINITY,
+                f64::INFINITY,
+                if planned {
+                    CAUSE_PLANNED
+                } else {
+                    CAUSE_UNPLANNED
+                },
+            ),
         };
         self.ws.fail_at[idx] = fail;
         self.ws.due_at[idx] = due;
+        self.ws.done_at[idx] = f64::INFINITY;
         self.ws.cause[idx] = cause;
     }
 
-    /// Set the unit's next own event (failure, due, hard limit); none while
-    /// it is down.
+    /// Set the unit's next own event: while up, its next failure, due or
+    /// hard limit; while down, the earliest end of a replacement under way
+    /// (lower positions first at the same instant), or none.
     fn schedule_unit(&mut self, u: usize, now: Hours) {
         let unit = &self.ws.units[u];
+        let (first, n) = (unit.first_pos, unit.n_pos);
         if unit.holding_down > 0 {
-            self.ws.tourney.set(u, f64::INFINITY, CLASS_DUE);
+            let mut best = f64::INFINITY;
+            let mut best_j = 0;
+            for (j, &d) in self.ws.done_at[first..first + n].iter().enumerate() {
+                if d < best {
+                    best = d;
+                    best_j = j;
+                }
+            }
+            self.ws.units[u].next_pos = best_j;
+            let time = if best < self.horizon {
+                best
+            } else {
+                f64::INFINITY
+            };
+            self.ws.tourney.set(u, time, CLASS_COMPLETION);
             return;
         }
-        let (first, n) = (unit.first_pos, unit.n_pos);
-        let mut best_op = f64::INFINITY;
-        let mut best_class = CLASS_DUE;
-        let mut best_j = 0;
         // Failures before dues at the same reading; lower positions first.
-        for (j, &f) in self.ws.fail_at[first..first + n].iter().enumerate() {
-            if f < best_op {
-                best_op = f;
-                best_class = CLASS_FAILURE;
-                best_j = j;
-            }
-        }
-        for (j, &d) in self.ws.due_at[first..first + n].iter().enumerate() {
-            if d < best_op {
-                best_op = d;
-                best_class = CLASS_DUE;
-                best_j = j;
-            }
-        }
+        let fails = &self.ws.fail_at[first..first + n];
+        let dues = &self.ws.due_at[first..first + n];
+        let (mf, md) = (min_of(fails), min_of(dues));
+        let (best_op, best_class, best_j) = if mf <= md {
+            (mf, CLASS_FAILURE, first_index_of(fails, mf))
+        } else {
+            (md, CLASS_DUE, first_index_of(dues, md))
+        };
         let time = if best_op.is_finite() {
             now + (best_op - unit.op).max(0.0)
         } else {
@@ -554,20 +702,9 @@ impl<'a, 'm> Run<'a, 'm> {
     }
 
     /// A unit goes from up to down or gains another reason to stay down.
+    /// The caller reschedules the unit once its positions are set.
     fn hold_down(&mut self, u: usize) {
-        let unit = &mut self.ws.units[u];
-        // The unit's entry in the tournament is left as it is; a stale entry
-        // that reaches the top is discarded there (lazy deletion), and one
-        // that does not is overwritten when the unit comes up again.
-        unit.holding_down += 1;
-    }
-
-    fn release(&mut self, u: usize, now: Hours) {
-        let unit = &mut self.ws.units[u];
-        unit.holding_down -= 1;
-        if unit.holding_down == 0 {
-            self.schedule_unit(u, now);
-        }
+        self.ws.units[u].holding_down += 1;
     }
 
     /// Place one resupply order for `part` at `now`.
@@ -583,12 +720,90 @@ impl<'a, 'm> Run<'a, 'm> {
         po.parts_cost += self.sim.model.parts[part].price;
         let time = now + lead;
         if time < self.horizon {
-            let t = tie(CLASS_ARRIVAL, part, (k & 0xFFFF) as usize);
-            self.ws.heap.push(Reverse(Event::new(time, t)));
+            // Keep the list latest first: (time, order number) descending.
+            // It holds a few orders, so one insertion-sort step is cheapest.
+            let pending = &mut self.ws.stores[part].pending;
+            pending.push((time, k));
+            let mut i = pending.len() - 1;
+            while i > 0 && pending[i - 1] < pending[i] {
+                pending.swap(i - 1, i);
+                i -= 1;
+            }
+            let s = &self.ws.stores[part];
+            if !(s.failures.is_empty() && s.planned.is_empty()) || self.sim.all_events {
+                // It may now be the earliest awaited arrival.
+                self.refresh_arrival(part);
+            }
         }
     }
 
-    /// Take a spare for position `idx` of unit `u` and start the work.
+    /// Book the arrivals of `part` up to and including `now` (an arrival
+    /// comes before a failure or a due at the same instant). Only called
+    /// while no demand for `part` waits, so each arrival puts a spare on the
+    /// shelf.
+    #[inline]
+    fn settle(&mut self, part: usize, now: Hours) {
+        let s = &mut self.ws.stores[part];
+        while let Some(&(t, _)) = s.pending.last() {
+            if t > now {
+                break;
+            }
+            s.pending.pop();
+            s.area += s.on_hand as f64 * (t - s.last);
+            s.last = t;
+            s.on_hand += 1;
+            self.ws.on_order[part] -= 1;
+        }
+    }
+
+    /// Make `part`'s next arrival an event while demands for it wait, and
+    /// take it out otherwise.
+    #[inline]
+    fn refresh_arrival(&mut self, part: usize) {
+        let s = &self.ws.stores[part];
+        let awaited = !(s.failures.is_empty() && s.planned.is_empty()) || self.sim.all_events;
+        let t = match s.pending.last() {
+            Some(&(t, _)) if awaited => t,
+            _ => f64::INFINITY,
+        };
+        self.ws.arrivals.set(part, t);
+    }
+
+    /// Start the replacement of position `j` of unit `u` (its spare in
+    /// hand, the unit held down by it), then set the unit's next event.
+    fn start_work(&mut self, u: usize, j: usize, planned: bool, now: Hours) {
+        self.start_replacement(u, j, planned, now);
+        let done = self.ws.done_at[self.ws.units[u].first_pos + j];
+        let unit = &self.ws.units[u];
+        if unit.holding_down == 1
+            && unit.waiting_planned == 0
+            && done < self.horizon
+            && !self.sim.all_events
+        {
+            // Nothing can touch this unit until the work ends: its parts do
+            // not age while it is down, and no demand of it waits for a
+            // spare. So the work is finished now, as of its end time.
+            // The work is the unit's only reason to be down, so its down
+            // time goes to this position's cause without a scan.
+            let unit = &mut self.ws.units[u];
+            let dt = done - unit.last;
+            if dt > 0.0 {
+                unit.last = done;
+                if planned {
+                    self.out.down_planned += dt;
+                } else {
+                    self.out.down_unplanned += dt;
+                }
+                let part = self.ws.pos[unit.first_pos + j].part;
+                self.out.parts[part].down_hours += dt;
+            }
+            self.fit_new_part(u, j, done);
+        } else {
+            self.schedule_unit(u, now);
+        }
+    }
+
+    /// Take a spare for position `j` of unit `u` and start the work.
     fn start_replacement(&mut self, u: usize, j: usize, planned: bool, now: Hours) {
         let idx = self.ws.units[u].first_pos + j;
         let part = self.ws.pos[idx].part;
@@ -603,12 +818,7 @@ impl<'a, 'm> Run<'a, 'm> {
             po.labour_unplanned += pt.labour_unplanned;
             pt.duration_unplanned
         };
-        let time = now + duration;
-        if time < self.horizon {
-            self.ws
-                .heap
-                .push(Reverse(Event::new(time, tie(CLASS_COMPLETION, u, j))));
-        }
+        self.ws.done_at[idx] = now + duration;
     }
 
     fn event_loop(&mut self) {
@@ -616,43 +826,31 @@ impl<'a, 'm> Run<'a, 'm> {
             if self.check {
                 self.check_invariants();
             }
-            let (ut, uclass, u) = self.ws.tourney.top();
-            // A completion or arrival at the same instant comes before any
-            // unit event (its class is lower).
-            let take_heap = match self.ws.heap.peek() {
-                Some(Reverse(ev)) => ev.time() <= ut,
-                None => false,
-            };
-            self.out.events += 1;
-            if take_heap {
-                let Some(Reverse(ev)) = self.ws.heap.pop() else {
-                    break;
-                };
-                if ev.class() == CLASS_COMPLETION {
-                    self.on_completion(ev.id(), ev.position(), ev.time());
-                } else {
-                    self.on_arrival(ev.id(), ev.time());
-                }
+            let (t, class, u) = self.ws.tourney.top();
+            // An arrival at the same instant comes after a completion and
+            // before a failure or a due (the classes' order).
+            let (ta, part) = self.ws.arrivals.first;
+            if ta < t || (ta == t && ta.is_finite() && class != CLASS_COMPLETION) {
+                self.out.events += 1;
+                self.on_arrival(part, ta);
                 continue;
             }
-            if !ut.is_finite() {
-                self.out.events -= 1;
+            if !t.is_finite() {
                 break;
             }
-            if self.ws.units[u].holding_down > 0 {
-                // Stale: the unit went down after this event was set.
-                self.out.events -= 1;
-                self.ws.tourney.set(u, f64::INFINITY, CLASS_DUE);
+            self.out.events += 1;
+            let j = self.ws.units[u].next_pos;
+            if class == CLASS_COMPLETION {
+                self.on_completion(u, j, t);
                 continue;
             }
-            self.advance_unit(u, ut);
+            self.advance_unit(u, t);
             // Snap the clock to the event's reading (no rounding drift).
-            let (j, op) = (self.ws.units[u].next_pos, self.ws.units[u].next_op);
-            self.ws.units[u].op = op;
-            if uclass == CLASS_FAILURE {
-                self.on_failure(u, j, ut);
+            self.ws.units[u].op = self.ws.units[u].next_op;
+            if class == CLASS_FAILURE {
+                self.on_failure(u, j, t);
             } else {
-                self.on_due(u, j, ut);
+                self.on_due(u, j, t);
             }
         }
         if self.check {
@@ -693,26 +891,17 @@ impl<'a, 'm> Run<'a, 'm> {
         if was == Status::WaitingPlanned {
             // The waiting planned demand becomes a failure: no new order, no
             // second stock-out; it joins the waiting failures now.
+            self.ws.units[u].waiting_planned -= 1;
             let store = &mut self.ws.stores[part];
             store
                 .planned
                 .retain(|&(a, b)| (a as usize, b as usize) != (u, j));
             store.failures.push_back((u as u32, j as u32));
             self.set_status(idx, Status::Failed);
+            self.schedule_unit(u, now);
             return;
         }
-        self.order(part, now);
-        if self.ws.stores[part].on_hand > 0 {
-            self.touch_store(part, now);
-            self.ws.stores[part].on_hand -= 1;
-            self.start_replacement(u, j, false, now);
-        } else {
-            self.out.parts[part].stockouts += 1;
-            self.set_status(idx, Status::Failed);
-            self.ws.stores[part]
-                .failures
-                .push_back((u as u32, j as u32));
-        }
+        self.demand(u, j, idx, part, false, now);
     }
 
     fn on_due(&mut self, u: usize, j: usize, now: Hours) {
@@ -721,6 +910,7 @@ impl<'a, 'm> Run<'a, 'm> {
         if self.ws.pos[idx].status == Status::WaitingPlanned {
             // A safety-critical part reached its hard limit while waiting:
             // the unit is held down until a spare comes.
+            self.ws.units[u].waiting_planned -= 1;
             let store = &mut self.ws.stores[part];
             store
                 .planned
@@ -728,28 +918,61 @@ impl<'a, 'm> Run<'a, 'm> {
             store.failures.push_back((u as u32, j as u32));
             self.set_status(idx, Status::Grounded);
             self.hold_down(u);
+            self.schedule_unit(u, now);
             return;
+        }
+        self.demand(u, j, idx, part, true, now);
+    }
+
+    /// A new demand for a spare from position `j` of unit `u` (a failure,
+    /// or a planned replacement falling due): one order at once, then the
+    /// spare on the shelf if there is one, else a place in the queue. A
+    /// failure's unit is already held down by the caller.
+    fn demand(&mut self, u: usize, j: usize, idx: usize, part: usize, planned: bool, now: Hours) {
+        // Arrivals up to this instant come first; the new order cannot be
+        // among them.
+        if self.ws.stores[part].failures.is_empty() && self.ws.stores[part].planned.is_empty() {
+            self.settle(part, now);
         }
         self.order(part, now);
         if self.ws.stores[part].on_hand > 0 {
             self.touch_store(part, now);
             self.ws.stores[part].on_hand -= 1;
-            self.hold_down(u);
-            self.start_replacement(u, j, true, now);
+            if planned {
+                self.hold_down(u);
+            }
+            self.start_work(u, j, planned, now);
+            return;
         } else {
             self.out.parts[part].stockouts += 1;
-            self.set_status(idx, Status::WaitingPlanned);
-            self.ws.stores[part].planned.push_back((u as u32, j as u32));
-            self.schedule_unit(u, now);
+            let store = &mut self.ws.stores[part];
+            if planned {
+                store.planned.push_back((u as u32, j as u32));
+                self.ws.units[u].waiting_planned += 1;
+                self.set_status(idx, Status::WaitingPlanned);
+            } else {
+                store.failures.push_back((u as u32, j as u32));
+                self.set_status(idx, Status::Failed);
+            }
+            self.refresh_arrival(part);
         }
+        self.schedule_unit(u, now);
     }
 
     fn on_completion(&mut self, u: usize, j: usize, now: Hours) {
         self.advance_unit(u, now);
+        self.fit_new_part(u, j, now);
+    }
+
+    /// Fit a new part in position `j` of unit `u` at `now` (the unit's books
+    /// already brought up to `now`), release the unit's hold and set its
+    /// next event.
+    fn fit_new_part(&mut self, u: usize, j: usize, now: Hours) {
         let idx = self.ws.units[u].first_pos + j;
         let part = self.ws.pos[idx].part;
         let op = self.ws.units[u].op;
         let life = self.lives[part].sample_residual(0.0, &mut self.ws.pos[idx].lives);
+        self.ws.pos[idx].drawn += 1;
         let rule: Rule = self.sim.policy[part].rule;
         let limit = self.sim.model.parts[part].hard_limit;
         let p = &mut self.ws.pos[idx];
@@ -757,10 +980,15 @@ impl<'a, 'm> Run<'a, 'm> {
         p.due_op = rule.due_at(op, 0.0).unwrap_or(f64::INFINITY);
         p.limit_op = limit.map_or(f64::INFINITY, |l| op + l);
         self.set_status(idx, Status::Working);
-        self.release(u, now);
+        self.ws.units[u].holding_down -= 1;
+        self.schedule_unit(u, now);
     }
 
+    /// The earliest order of `part` arrives while demands for it wait: it
+    /// serves the first waiting failure, else the first waiting planned
+    /// replacement.
     fn on_arrival(&mut self, part: usize, now: Hours) {
+        self.ws.stores[part].pending.pop();
         self.touch_store(part, now);
         self.ws.on_order[part] -= 1;
         let store = &mut self.ws.stores[part];
@@ -771,15 +999,17 @@ impl<'a, 'm> Run<'a, 'm> {
             let planned = self.ws.pos[idx].status == Status::Grounded;
             // The unit is already held down by this position; the hold passes
             // from waiting to the replacement work.
-            self.start_replacement(u, j, planned, now);
+            self.start_work(u, j, planned, now);
         } else if let Some((u, j)) = store.planned.pop_front() {
             let (u, j) = (u as usize, j as usize);
+            self.ws.units[u].waiting_planned -= 1;
             self.advance_unit(u, now);
             self.hold_down(u);
-            self.start_replacement(u, j, true, now);
+            self.start_work(u, j, true, now);
         } else {
             store.on_hand += 1;
         }
+        self.refresh_arrival(part);
     }
 
     fn finish(mut self) -> TrialOutcome {
@@ -789,6 +1019,9 @@ impl<'a, 'm> Run<'a, 'm> {
         }
         let model = self.sim.model;
         for p in 0..model.parts.len() {
+            // Orders still on their way all arrive before the horizon, and
+            // none is awaited (an awaited one would have been an event).
+            self.settle(p, h);
             self.touch_store(p, h);
             let pt = &model.parts[p];
             let po = &mut self.out.parts[p];
