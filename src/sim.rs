@@ -200,6 +200,8 @@ struct UnitState {
     n_pos: usize,
     /// Number of positions that hold the unit down.
     holding_down: u32,
+    /// Number of its positions under replacement.
+    replacing: u32,
     /// Number of positions due for planned replacement and waiting for a
     /// spare (their parts still work).
     waiting_planned: u32,
@@ -567,6 +569,7 @@ impl<'a, 'm> Run<'a, 'm> {
                 n_pos: unit.parts.len(),
                 holding_down: 0,
                 waiting_planned: 0,
+                replacing: 0,
                 next_pos: 0,
                 next_op: f64::INFINITY,
             });
@@ -619,6 +622,11 @@ impl<'a, 'm> Run<'a, 'm> {
         let unit = &self.ws.units[u];
         let (first, n) = (unit.first_pos, unit.n_pos);
         if unit.holding_down > 0 {
+            if unit.replacing == 0 {
+                // Down and only waiting for spares: no event of its own.
+                self.ws.tourney.set(u, f64::INFINITY, CLASS_COMPLETION);
+                return;
+            }
             let mut best = f64::INFINITY;
             let mut best_j = 0;
             for (j, &d) in self.ws.done_at[first..first + n].iter().enumerate() {
@@ -805,6 +813,7 @@ impl<'a, 'm> Run<'a, 'm> {
 
     /// Take a spare for position `j` of unit `u` and start the work.
     fn start_replacement(&mut self, u: usize, j: usize, planned: bool, now: Hours) {
+        self.ws.units[u].replacing += 1;
         let idx = self.ws.units[u].first_pos + j;
         let part = self.ws.pos[idx].part;
         let pt = &self.sim.model.parts[part];
@@ -879,6 +888,15 @@ impl<'a, 'm> Run<'a, 'm> {
                 })
                 .count() as u32;
             assert_eq!(held, unit.holding_down, "hold count");
+            let replacing = (0..unit.n_pos)
+                .filter(|&j| {
+                    matches!(
+                        self.ws.pos[unit.first_pos + j].status,
+                        Status::Replacing { .. }
+                    )
+                })
+                .count() as u32;
+            assert_eq!(replacing, unit.replacing, "replacement count");
         }
     }
 
@@ -981,6 +999,7 @@ impl<'a, 'm> Run<'a, 'm> {
         p.limit_op = limit.map_or(f64::INFINITY, |l| op + l);
         self.set_status(idx, Status::Working);
         self.ws.units[u].holding_down -= 1;
+        self.ws.units[u].replacing -= 1;
         self.schedule_unit(u, now);
     }
 
