@@ -130,34 +130,17 @@ impl Arrivals {
     }
 }
 
-/// The least of `xs` (infinite when empty), in four independent lanes so
-/// that the compiler can use vector minimums.
+/// A position's next own event as one sortable integer: the earlier of
+/// its failure reading `fail` and its due reading `due`, a failure first
+/// at the same reading. A non-negative `f64`'s bits sort as the number and
+/// leave the sign bit free, so `bits << 1 | is_due` orders by reading, then
+/// failures before dues.
 #[inline]
-fn min_of(xs: &[f64]) -> f64 {
-    let mut m = [f64::INFINITY; 4];
-    let mut chunks = xs.chunks_exact(4);
-    for c in &mut chunks {
-        for k in 0..4 {
-            m[k] = if c[k] < m[k] { c[k] } else { m[k] };
-        }
-    }
-    for (k, &x) in chunks.remainder().iter().enumerate() {
-        m[k] = if x < m[k] { x } else { m[k] };
-    }
-    let a = if m[1] < m[0] { m[1] } else { m[0] };
-    let b = if m[3] < m[2] { m[3] } else { m[2] };
-    if b < a { b } else { a }
-}
-
-/// The index of the first element of `xs` equal to `x` (0 if none),
-/// scanned to the end without an early exit (which would be mispredicted).
-#[inline]
-fn first_index_of(xs: &[f64], x: f64) -> usize {
-    let mut at = 0;
-    for (j, &v) in xs.iter().enumerate().rev() {
-        at = if v == x { j } else { at };
-    }
-    at
+fn reading_key(fail: Hours, due: Hours) -> u64 {
+    // `+ 0.0` turns a negative zero into zero (readings are never negative).
+    let f = (fail + 0.0).to_bits() << 1;
+    let d = ((due + 0.0).to_bits() << 1) | 1;
+    f.min(d)
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -256,10 +239,11 @@ pub struct Workspace {
     tourney: Tourney,
     arrivals: Arrivals,
     /// Per position, derived from its status (kept by `Run::set_status`):
-    /// the reading at which it fails (infinite unless working), the reading
-    /// of its next due or hard-limit event, and its down-time cause rank.
-    fail_at: Vec<Hours>,
-    due_at: Vec<Hours>,
+    /// its next own event as a [`reading_key`] (the reading at which it
+    /// fails, infinite unless working, or of its next due or hard limit,
+    /// whichever is first, a failure first at the same reading), and its
+    /// down-time cause rank.
+    key_at: Vec<u64>,
     /// Per position: wall time at which its replacement ends (infinite
     /// unless one is under way).
     done_at: Vec<Hours>,
@@ -493,8 +477,7 @@ impl<'a, 'm> Run<'a, 'm> {
         ws.arrivals.reset(n_parts);
         ws.units.clear();
         ws.pos.clear();
-        ws.fail_at.clear();
-        ws.due_at.clear();
+        ws.key_at.clear();
         ws.done_at.clear();
         ws.cause.clear();
         ws.orders.clear();
@@ -557,8 +540,7 @@ impl<'a, 'm> Run<'a, 'm> {
                     lives: lives_stream,
                     drawn: active as u32,
                 });
-                ws.fail_at.push(fail_op);
-                ws.due_at.push(due_op.min(limit_op));
+                ws.key_at.push(reading_key(fail_op, due_op.min(limit_op)));
                 ws.done_at.push(f64::INFINITY);
                 ws.cause.push(CAUSE_NONE);
             }
@@ -609,8 +591,7 @@ impl<'a, 'm> Run<'a, 'm> {
                 },
             ),
         };
-        self.ws.fail_at[idx] = fail;
-        self.ws.due_at[idx] = due;
+        self.ws.key_at[idx] = reading_key(fail, due);
         self.ws.done_at[idx] = f64::INFINITY;
         self.ws.cause[idx] = cause;
     }
@@ -644,14 +625,21 @@ impl<'a, 'm> Run<'a, 'm> {
             self.ws.tourney.set(u, time, CLASS_COMPLETION);
             return;
         }
-        // Failures before dues at the same reading; lower positions first.
-        let fails = &self.ws.fail_at[first..first + n];
-        let dues = &self.ws.due_at[first..first + n];
-        let (mf, md) = (min_of(fails), min_of(dues));
-        let (best_op, best_class, best_j) = if mf <= md {
-            (mf, CLASS_FAILURE, first_index_of(fails, mf))
+        // The least key: the earliest reading, a failure before a due at the
+        // same reading, then the lower position (strict `<` in index order).
+        let mut best = u64::MAX;
+        let mut best_j = 0;
+        for (j, &k) in self.ws.key_at[first..first + n].iter().enumerate() {
+            if k < best {
+                best = k;
+                best_j = j;
+            }
+        }
+        let best_op = f64::from_bits(best >> 1);
+        let best_class = if best & 1 == 0 {
+            CLASS_FAILURE
         } else {
-            (md, CLASS_DUE, first_index_of(dues, md))
+            CLASS_DUE
         };
         let time = if best_op.is_finite() {
             now + (best_op - unit.op).max(0.0)
