@@ -7,7 +7,7 @@
 //! turning the re-costed summaries into a [`FrontierResult`] the same way
 //! the search's last step does (non-dominated, cheapest first, paired noise
 //! flags between neighbours).
-//! May use: `model`, `frontier` (its public filter and noise flags),
+//! May use: `model`, `frontier` (its public frontier filter and noise flags),
 //! `summary`, `serde_json` (as a value tree; no derives). No I/O: the caller
 //! reads the file.
 
@@ -15,10 +15,7 @@ use std::ops::Range;
 
 use serde_json::Value;
 
-use crate::frontier::{
-    Costed, FrontierPoint, FrontierResult, SearchStats, VALIDATION_OFFSET, non_dominated,
-    paired_noise,
-};
+use crate::frontier::{Costed, FrontierResult, SearchStats, VALIDATION_OFFSET, frontier_points};
 use crate::model::{CostMeasure, Model, PartPolicy, Policy, Rule};
 use crate::summary::Summary;
 
@@ -254,18 +251,7 @@ pub fn frontier_of(
             summary: s,
         })
         .collect();
-    let pts: Vec<(f64, f64)> = recosted
-        .iter()
-        .map(|c| (c.cost.mean, c.chance.value))
-        .collect();
-    let mut points: Vec<FrontierPoint> = Vec::new();
-    for i in non_dominated(&pts) {
-        let costed = recosted[i].clone();
-        let noise = points.last().map(|prev: &FrontierPoint| {
-            paired_noise(&prev.costed.summary, &costed.summary, measure)
-        });
-        points.push(FrontierPoint { costed, noise });
-    }
+    let points = frontier_points(&recosted, measure, false);
     let stats = SearchStats {
         recosted: recosted.len(),
         seconds_validation: seconds,

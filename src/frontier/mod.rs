@@ -310,6 +310,35 @@ fn full(
     crate::run::evaluate(model, policy, range, target, progress)
 }
 
+/// The non-dominated policies among `recosted`, cheapest first, each with
+/// its paired noise flags against the one before it; named `F1`, `F2`, ...
+/// when `rename` (a search's frontier), else keeping their names (a list
+/// the user gave).
+pub fn frontier_points(
+    recosted: &[Costed],
+    measure: CostMeasure,
+    rename: bool,
+) -> Vec<FrontierPoint> {
+    let pts: Vec<(f64, f64)> = recosted
+        .iter()
+        .map(|c| (c.cost.mean, c.chance.value))
+        .collect();
+    let front = non_dominated(&pts);
+    let mut points: Vec<FrontierPoint> = Vec::with_capacity(front.len());
+    for (k, &i) in front.iter().enumerate() {
+        let mut costed = recosted[i].clone();
+        if rename {
+            costed.policy.name = format!("F{}", k + 1);
+            costed.summary.policy.name = costed.policy.name.clone();
+        }
+        let noise = points.last().map(|prev: &FrontierPoint| {
+            paired_noise(&prev.costed.summary, &costed.summary, measure)
+        });
+        points.push(FrontierPoint { costed, noise });
+    }
+    points
+}
+
 /// Paired noise flags between two policies on the same trials.
 pub fn paired_noise(a: &Summary, b: &Summary, measure: CostMeasure) -> NoiseFlags {
     let n = a.trials().min(b.trials()) as usize;
@@ -586,21 +615,7 @@ pub fn search(
         });
     }
     stats.seconds_validation = t_val.elapsed().as_secs_f64();
-    let vpts: Vec<(f64, f64)> = recosted
-        .iter()
-        .map(|c| (c.cost.mean, c.chance.value))
-        .collect();
-    let vfront = non_dominated(&vpts);
-    let mut points: Vec<FrontierPoint> = Vec::with_capacity(vfront.len());
-    for (k, &i) in vfront.iter().enumerate() {
-        let mut costed = recosted[i].clone();
-        costed.policy.name = format!("F{}", k + 1);
-        costed.summary.policy.name = costed.policy.name.clone();
-        let noise = points.last().map(|prev: &FrontierPoint| {
-            paired_noise(&prev.costed.summary, &costed.summary, measure)
-        });
-        points.push(FrontierPoint { costed, noise });
-    }
+    let points = frontier_points(&recosted, measure, true);
     let mut names = 0;
     let searched_out = searched
         .into_iter()
