@@ -16,6 +16,12 @@
 //!
 //! What the replacement rules decide is asked of [`Rule`] (when is a part
 //! due?); the loop itself only moves clocks, parts and spares.
+//!
+//! Two shortcuts keep the events near one per renewal, and change no
+//! result ([`Simulator::with_all_events`] turns them off for tests): a
+//! replacement that nothing can interrupt is finished within its demand's
+//! event, and an arrival nobody waits for is booked when its store is next
+//! used.
 
 use std::collections::VecDeque;
 
