@@ -5,6 +5,11 @@
 //! never prints; this layer turns its results into text or JSON.
 //! May use: every library module.
 
+// The argument types' doc comments are clap's help text, written for the
+// terminal (`[policies]` is a TOML table, `<scenario-name>` a placeholder),
+// not rustdoc markup.
+#![allow(rustdoc::broken_intra_doc_links, rustdoc::invalid_html_tags)]
+
 mod check;
 mod evaluate;
 pub mod fit;

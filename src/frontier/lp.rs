@@ -9,11 +9,13 @@
 //! type `p` and `D[p][o][t]` its down hours on trial `t`, the loss of trial
 //! `t` is `L_t = sum x D - B` with `B` the down hours the target allows;
 //!
-//!   minimise   sum x[p][o] c[p][o]
-//!   subject to sum_o x[p][o] = 1 for every p,  x >= 0,
-//!              eta + 1 / ((1 - alpha) N) sum_t z_t <= 0,
-//!              z_t >= L_t - eta,  z_t >= 0,
-//!              sum x[p][o] capital[p][o] <= budget (when given).
+//! ```text
+//! minimise   sum x[p][o] c[p][o]
+//! subject to sum_o x[p][o] = 1 for every p,  x >= 0,
+//!            eta + 1 / ((1 - alpha) N) sum_t z_t <= 0,
+//!            z_t >= L_t - eta,  z_t >= 0,
+//!            sum x[p][o] capital[p][o] <= budget (when given).
+//! ```
 //!
 //! CVaR <= 0 implies P(L <= 0) >= alpha, so every feasible point meets the
 //! chance on these trials. The solution is fractional in a few part types;
