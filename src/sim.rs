@@ -36,6 +36,10 @@ const CLASS_COMPLETION: u64 = 0;
 const CLASS_FAILURE: u64 = 2;
 const CLASS_DUE: u64 = 3;
 
+/// Lead times drawn at a time per part type (the last batch of a trial is
+/// partly unused: at most `LEAD_BATCH - 1` spare draws per part type).
+const LEAD_BATCH: usize = 8;
+
 /// Down-time causes in priority order (lower wins when causes overlap).
 const CAUSE_WAITING: u8 = 0;
 const CAUSE_UNPLANNED: u8 = 1;
@@ -210,6 +214,9 @@ struct Store {
     area: f64,
     last: Hours,
     leads: Stream,
+    /// Lead times drawn ahead from `leads`, in order, and the next to use.
+    lead_buf: [Hours; LEAD_BATCH],
+    lead_next: usize,
     /// Orders on their way that arrive before the horizon, as (arrival
     /// time, order number), latest first. While no demand waits, an arrival
     /// only puts a spare on the shelf, so it is booked when the store is
@@ -500,6 +507,7 @@ impl<'a, 'm> Run<'a, 'm> {
                 s.area = 0.0;
                 s.last = 0.0;
                 s.leads = leads;
+                s.lead_next = LEAD_BATCH;
                 s.pending.clear();
             } else {
                 ws.stores.push(Store {
@@ -509,6 +517,8 @@ impl<'a, 'm> Run<'a, 'm> {
                     area: 0.0,
                     last: 0.0,
                     leads,
+                    lead_buf: [0.0; LEAD_BATCH],
+                    lead_next: LEAD_BATCH,
                     pending: Vec::new(),
                 });
             }
@@ -714,9 +724,18 @@ impl<'a, 'm> Run<'a, 'm> {
         let k = self.ws.orders[part];
         self.ws.orders[part] += 1;
         self.ws.on_order[part] += 1;
-        let lead = self.sim.model.parts[part]
-            .lead_time
-            .sample(&mut self.ws.stores[part].leads);
+        let s = &mut self.ws.stores[part];
+        if s.lead_next == LEAD_BATCH {
+            // Independent draws overlap when made together; the k-th order
+            // still gets the k-th draw of the stream.
+            let lead_time = &self.sim.model.parts[part].lead_time;
+            for slot in &mut s.lead_buf {
+                *slot = lead_time.sample(&mut s.leads);
+            }
+            s.lead_next = 0;
+        }
+        let lead = s.lead_buf[s.lead_next];
+        s.lead_next += 1;
         let po = &mut self.out.parts[part];
         po.orders += 1;
         po.parts_cost += self.sim.model.parts[part].price;
