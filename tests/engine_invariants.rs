@@ -226,6 +226,65 @@ fn same_sum(a: f64, b: f64) -> bool {
     (a - b).abs() <= 1e-9 * a.abs().max(b.abs()).max(1.0)
 }
 
+/// Ties everywhere: every part new, so identical units fall due on the
+/// same instants; block replacement on two positions of one type at the
+/// same readings; spares that arrive at once (lead time 0) or after a
+/// fixed time; zero repair times; no stock at all for one part type; and a
+/// safety-critical part whose hard limit falls inside its block interval's
+/// waits.
+const TIES: &str = r#"
+[scenario]
+name = "ties"
+horizon_hours = 20000
+downtime_penalty_per_hour = 5
+target_availability = 0.9
+seed = 11
+
+[defaults]
+holding = { fraction_of_price = 0.2, per_hours = 8760 }
+lead_time = { dist = "fixed", hours = 0 }
+
+[parts.a]
+life = { dist = "weibull", shape = 3.0, scale = 2000 }
+price = 10
+labour = { planned = 1, unplanned = 2 }
+duration_hours = { planned = 0, unplanned = 0 }
+
+[parts.b]
+life = { dist = "exponential", mean = 1500 }
+price = 20
+labour = { planned = 1, unplanned = 2 }
+duration_hours = { planned = 4, unplanned = 8 }
+lead_time = { dist = "fixed", hours = 250 }
+
+[parts.c]
+life = { dist = "weibull", shape = 2.0, scale = 3000 }
+price = 30
+labour = { planned = 1, unplanned = 2 }
+duration_hours = { planned = 3, unplanned = 6 }
+lead_time = { dist = "fixed", hours = 400 }
+hard_limit_hours = 1800
+safety_critical = true
+
+[units.m]
+positions = ["a", "a", "b", "c"]
+
+[[fleet]]
+unit = "m"
+count = 6
+initial_age = "new"
+
+[policies.grid]
+a = { rule = "block", interval_hours = 1000, stock = 1 }
+b = { rule = "run_to_failure", stock = 0 }
+c = { rule = "block", interval_hours = 1500, stock = 0 }
+
+[policies.aged]
+a = { rule = "age", interval_hours = 1200, stock = 0 }
+b = { rule = "age", interval_hours = 900, stock = 1 }
+c = { rule = "age", interval_hours = 1700, stock = 1 }
+"#;
+
 #[test]
 fn the_event_loops_shortcuts_change_no_result() {
     // The loop finishes a replacement nothing can interrupt within its
@@ -235,12 +294,15 @@ fn the_event_loops_shortcuts_change_no_result() {
     // to the order of their additions. (Internal consistency check of the
     // model's rules; common practice for event-list optimisations.)
     let mixed = wearout::scenario::parse("mixed.toml", MIXED).expect("mixed parses");
+    let ties = wearout::scenario::parse("ties.toml", TIES).expect("ties parses");
     let cases = [
         (load("b1"), "reference"),
         (load("b0"), "reference"),
         (load("demo"), "reference"),
         (mixed.clone(), "blocky"),
         (mixed, "aged"),
+        (ties.clone(), "grid"),
+        (ties, "aged"),
     ];
     for (m, name) in &cases {
         let p = m.policy(name).unwrap().clone();
