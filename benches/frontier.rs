@@ -23,13 +23,8 @@ fn config(
     exhaustive: bool,
 ) -> FrontierConfig {
     FrontierConfig {
-        search_trials,
-        validate_trials,
-        target,
         exhaustive,
-        max_full: 48,
-        screen_trials: 1000,
-        max_frontier: 24,
+        ..FrontierConfig::new(search_trials, validate_trials, target)
     }
 }
 

@@ -287,12 +287,7 @@ impl Workspace {
     pub fn draw_counts(&self) -> DrawCounts {
         DrawCounts {
             lives: self.pos.iter().map(|p| p.drawn).collect(),
-            leads: self
-                .stores
-                .iter()
-                .zip(&self.orders)
-                .map(|(_, &k)| k as u32)
-                .collect(),
+            leads: self.orders.iter().map(|&k| k as u32).collect(),
         }
     }
 }

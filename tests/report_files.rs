@@ -26,13 +26,8 @@ fn demo() -> &'static (Model, FrontierResult, FrontierJson) {
     RUN.get_or_init(|| {
         let (model, _) = wearout::scenario::load_or_demo(None).expect("demo loads");
         let config = FrontierConfig {
-            search_trials: 200,
-            validate_trials: 400,
-            target: model.target,
-            exhaustive: false,
-            max_full: 48,
             screen_trials: 200,
-            max_frontier: 24,
+            ..FrontierConfig::new(200, 400, model.target)
         };
         let result = search(&model, &config, &Quiet).expect("search runs");
         let json = FrontierJson::new(&model, &result, false);

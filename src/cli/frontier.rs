@@ -49,13 +49,9 @@ pub fn compute(
         ));
     }
     let config = FrontierConfig {
-        search_trials,
-        validate_trials,
-        target,
         exhaustive: args.exhaustive,
         max_full: args.max_full,
-        screen_trials: 1000,
-        max_frontier: 24,
+        ..FrontierConfig::new(search_trials, validate_trials, target)
     };
     super::shards::guard(
         &model,

@@ -76,8 +76,7 @@ impl TempOut {
     /// # Errors
     /// When the temporary file cannot be created.
     pub fn create(target: &Path) -> Result<Self, UserError> {
-        let name = target
-            .file_name()
+        let tmp = crate::fit::plot::temp_beside(target)
             .ok_or_else(|| UserError(format!("{}: not a file name", target.display())))?;
         if target.is_dir() {
             return Err(UserError(format!(
@@ -85,15 +84,6 @@ impl TempOut {
                 target.display()
             )));
         }
-        let dir = target
-            .parent()
-            .filter(|p| !p.as_os_str().is_empty())
-            .unwrap_or(Path::new("."));
-        let tmp = dir.join(format!(
-            ".{}.tmp-{}",
-            name.to_string_lossy(),
-            std::process::id()
-        ));
         temps().push(tmp.clone());
         let file = std::fs::File::create(&tmp).map_err(|e| {
             temps().retain(|p| p != &tmp);

@@ -130,7 +130,7 @@ pub enum Command {
         #[arg(long)]
         exhaustive: bool,
         /// At most this many policies simulated in full during the search.
-        #[arg(long = "max-full", default_value_t = 48)]
+        #[arg(long = "max-full", default_value_t = crate::frontier::FrontierConfig::MAX_FULL)]
         max_full: usize,
         /// Skip the search: re-cost these policies (the output of a previous
         /// `frontier --json`, or an array of its policies) on the validation

@@ -54,6 +54,18 @@ pub(crate) fn guard_evaluate(model: &Model, policy: &Policy, trials: u64) -> Res
     guard(model, &est)
 }
 
+/// A scenario file's text and the folder its relative paths start from.
+fn read_scenario(p: &Path) -> Result<(String, std::path::PathBuf), UserError> {
+    let text = std::fs::read_to_string(p)
+        .map_err(|e| UserError(format!("cannot read scenario file {}: {e}", p.display())))?;
+    let dir = p
+        .parent()
+        .filter(|d| !d.as_os_str().is_empty())
+        .unwrap_or(Path::new("."))
+        .to_path_buf();
+    Ok((text, dir))
+}
+
 /// The scenario's source (text and folder) for a shard header, checked to
 /// give the model that was loaded.
 fn source_of(file: Option<&Path>, model: &Model) -> Result<Source, UserError> {
@@ -64,14 +76,8 @@ fn source_of(file: Option<&Path>, model: &Model) -> Result<Source, UserError> {
             text: crate::scenario::DEMO.to_string(),
         },
         Some(p) => {
-            let text = std::fs::read_to_string(p).map_err(|e| {
-                UserError(format!("cannot read scenario file {}: {e}", p.display()))
-            })?;
-            let dir = p
-                .parent()
-                .filter(|d| !d.as_os_str().is_empty())
-                .unwrap_or(Path::new("."));
-            let dir = std::fs::canonicalize(dir).unwrap_or_else(|_| dir.to_path_buf());
+            let (text, dir) = read_scenario(p)?;
+            let dir = std::fs::canonicalize(&dir).unwrap_or(dir);
             Source {
                 file: Some(p.display().to_string()),
                 dir: Some(dir.display().to_string()),
@@ -323,14 +329,7 @@ pub fn merge_files(args: &MergeArgs) -> Result<Merged, UserError> {
     }
     let given = match &args.scenario {
         Some(p) => {
-            let text = std::fs::read_to_string(p).map_err(|e| {
-                UserError(format!("cannot read scenario file {}: {e}", p.display()))
-            })?;
-            let dir = p
-                .parent()
-                .filter(|d| !d.as_os_str().is_empty())
-                .unwrap_or(Path::new("."))
-                .to_path_buf();
+            let (text, dir) = read_scenario(p)?;
             Some((p.display().to_string(), text, dir))
         }
         None => None,

@@ -391,6 +391,22 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
     Ok(svg)
 }
 
+/// The temporary file beside `path` that an atomic write of it goes
+/// through: `.NAME.tmp-PID` in the same folder (so the rename stays on one
+/// file system). `None` when `path` has no file name.
+pub fn temp_beside(path: &Path) -> Option<std::path::PathBuf> {
+    let name = path.file_name()?;
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    Some(dir.join(format!(
+        ".{}.tmp-{}",
+        name.to_string_lossy(),
+        std::process::id()
+    )))
+}
+
 /// Write `bytes` to `path` atomically: a temporary file in the same folder,
 /// flushed, then renamed over the target.
 ///
@@ -401,18 +417,7 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), FitError> {
         what: path.display().to_string(),
         message: m,
     };
-    let name = path
-        .file_name()
-        .ok_or_else(|| fail("not a file name".into()))?;
-    let dir = path
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let tmp = dir.join(format!(
-        ".{}.tmp-{}",
-        name.to_string_lossy(),
-        std::process::id()
-    ));
+    let tmp = temp_beside(path).ok_or_else(|| fail("not a file name".into()))?;
     let result = (|| -> std::io::Result<()> {
         let mut f = std::fs::File::create(&tmp)?;
         f.write_all(bytes)?;

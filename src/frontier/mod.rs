@@ -65,6 +65,32 @@ pub struct FrontierConfig {
     pub max_frontier: usize,
 }
 
+impl FrontierConfig {
+    /// The standard limits of `wearout frontier`: at most
+    /// [`FrontierConfig::MAX_FULL`] policies in full,
+    /// [`FrontierConfig::SCREEN_TRIALS`] screening trials, at most
+    /// [`FrontierConfig::MAX_FRONTIER`] policies re-costed; no exhaustive
+    /// search.
+    pub fn new(search_trials: u64, validate_trials: u64, target: f64) -> Self {
+        FrontierConfig {
+            search_trials,
+            validate_trials,
+            target,
+            exhaustive: false,
+            max_full: Self::MAX_FULL,
+            screen_trials: Self::SCREEN_TRIALS,
+            max_frontier: Self::MAX_FRONTIER,
+        }
+    }
+
+    /// Default upper bound on the policies simulated in full (`--max-full`).
+    pub const MAX_FULL: usize = 48;
+    /// Trials of each single-part screening run.
+    pub const SCREEN_TRIALS: u64 = 1000;
+    /// Most search-frontier policies re-costed.
+    pub const MAX_FRONTIER: usize = 24;
+}
+
 /// A policy with its figures on one set of trials.
 #[derive(Debug, Clone)]
 pub struct Costed {
