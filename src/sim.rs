@@ -81,14 +81,18 @@ impl Tourney {
 
     #[inline]
     fn set(&mut self, leaf: usize, time: Hours, class: u64) {
+        // The length is a power of two, so masking keeps every index in
+        // bounds without a check per level.
+        let node = &mut self.node[..];
+        let mask = node.len() - 1;
         let mut i = self.n + leaf;
         let mut cur = tourney_key(time, class, leaf);
-        self.node[i] = cur;
+        node[i & mask] = cur;
         while i > 1 {
-            let sibling = self.node[i ^ 1];
+            let sibling = node[(i ^ 1) & mask];
             i /= 2;
             cur = if sibling < cur { sibling } else { cur };
-            self.node[i] = cur;
+            node[i & mask] = cur;
         }
     }
 
@@ -193,6 +197,9 @@ struct UnitState {
     n_pos: usize,
     /// Number of positions that hold the unit down.
     holding_down: u32,
+    /// Sum of their indices within the unit: while one position holds it
+    /// down, which one.
+    held_sum: usize,
     /// Number of its positions under replacement.
     replacing: u32,
     /// Number of positions due for planned replacement and waiting for a
@@ -217,12 +224,18 @@ struct Store {
     /// Lead times drawn ahead from `leads`, in order, and the next to use.
     lead_buf: [Hours; LEAD_BATCH],
     lead_next: usize,
-    /// Orders on their way that arrive before the horizon, as (arrival
-    /// time, order number), latest first. While no demand waits, an arrival
+    /// Arrival times of the orders on their way that arrive before the
+    /// horizon, latest first, and of equal times the later order first (so
+    /// the earliest order arrives first). While no demand waits, an arrival
     /// only puts a spare on the shelf, so it is booked when the store is
     /// next used (or at the horizon); while demands wait, the earliest is an
     /// event (in [`Arrivals`]).
-    pending: Vec<(Hours, u64)>,
+    pending: Vec<Hours>,
+    /// Orders placed in this trial.
+    orders: u64,
+    /// Orders that arrive at or after the horizon (so the orders on their
+    /// way are these and `pending`).
+    beyond: u64,
 }
 
 /// Which part types take part in a run. Positions of an inactive part type
@@ -264,10 +277,6 @@ pub struct Workspace {
     units: Vec<UnitState>,
     pos: Vec<Pos>,
     stores: Vec<Store>,
-    /// Order counters per part type.
-    orders: Vec<u64>,
-    /// Orders placed and not yet arrived, per part type.
-    on_order: Vec<u64>,
     /// The trial's drawn lives per part type (parameter uncertainty).
     trial_lives: Vec<Life>,
 }
@@ -287,7 +296,7 @@ impl Workspace {
     pub fn draw_counts(&self) -> DrawCounts {
         DrawCounts {
             lives: self.pos.iter().map(|p| p.drawn).collect(),
-            leads: self.orders.iter().map(|&k| k as u32).collect(),
+            leads: self.stores.iter().map(|s| s.orders as u32).collect(),
         }
     }
 }
@@ -449,11 +458,25 @@ impl<'m> Simulator<'m> {
     }
 }
 
+/// The workspace's per-trial state as slices, set up for one trial. Held
+/// as slices (not the workspace's vectors) so that the event loop keeps
+/// their addresses and lengths at hand instead of reloading them.
+struct View<'a> {
+    tourney: &'a mut Tourney,
+    arrivals: &'a mut Arrivals,
+    key_at: &'a mut [u64],
+    done_at: &'a mut [Hours],
+    cause: &'a mut [u8],
+    units: &'a mut [UnitState],
+    pos: &'a mut [Pos],
+    stores: &'a mut [Store],
+}
+
 /// One trial in progress.
 struct Run<'a, 'm> {
     sim: &'a Simulator<'m>,
     lives: &'a [Life],
-    ws: &'a mut Workspace,
+    ws: View<'a>,
     horizon: Hours,
     out: TrialOutcome,
     check: bool,
@@ -488,10 +511,6 @@ impl<'a, 'm> Run<'a, 'm> {
         ws.key_at.clear();
         ws.done_at.clear();
         ws.cause.clear();
-        ws.orders.clear();
-        ws.orders.resize(n_parts, 0);
-        ws.on_order.clear();
-        ws.on_order.resize(n_parts, 0);
         ws.stores.truncate(n_parts);
         for (p, pp) in sim.policy.iter().enumerate() {
             let leads = seed.stream(StreamKey::LeadTimes { part: p as u32 });
@@ -503,7 +522,9 @@ impl<'a, 'm> Run<'a, 'm> {
                 s.last = 0.0;
                 s.leads = leads;
                 s.lead_next = LEAD_BATCH;
+                s.orders = 0;
                 s.pending.clear();
+                s.beyond = 0;
             } else {
                 ws.stores.push(Store {
                     on_hand: pp.stock,
@@ -514,7 +535,9 @@ impl<'a, 'm> Run<'a, 'm> {
                     leads,
                     lead_buf: [0.0; LEAD_BATCH],
                     lead_next: LEAD_BATCH,
+                    orders: 0,
                     pending: Vec::new(),
+                    beyond: 0,
                 });
             }
         }
@@ -561,6 +584,7 @@ impl<'a, 'm> Run<'a, 'm> {
                 first_pos: first,
                 n_pos: unit.parts.len(),
                 holding_down: 0,
+                held_sum: 0,
                 waiting_planned: 0,
                 replacing: 0,
                 next_pos: 0,
@@ -568,6 +592,16 @@ impl<'a, 'm> Run<'a, 'm> {
             });
         }
         let out = TrialOutcome::zeroed(n_parts);
+        let ws = View {
+            tourney: &mut ws.tourney,
+            arrivals: &mut ws.arrivals,
+            key_at: &mut ws.key_at,
+            done_at: &mut ws.done_at,
+            cause: &mut ws.cause,
+            units: &mut ws.units,
+            pos: &mut ws.pos,
+            stores: &mut ws.stores,
+        };
         let mut run = Run {
             sim,
             lives,
@@ -610,6 +644,7 @@ impl<'a, 'm> Run<'a, 'm> {
     /// Set the unit's next own event: while up, its next failure, due or
     /// hard limit; while down, the earliest end of a replacement under way
     /// (lower positions first at the same instant), or none.
+    #[inline(always)]
     fn schedule_unit(&mut self, u: usize, now: Hours) {
         let unit = &self.ws.units[u];
         let (first, n) = (unit.first_pos, unit.n_pos);
@@ -669,6 +704,7 @@ impl<'a, 'm> Run<'a, 'm> {
     }
 
     /// Bring the unit's clocks and down-time books up to `now`.
+    #[inline(always)]
     fn advance_unit(&mut self, u: usize, now: Hours) {
         let unit = &self.ws.units[u];
         let dt = now - unit.last;
@@ -681,14 +717,20 @@ impl<'a, 'm> Run<'a, 'm> {
             // Cause priority: waiting for a spare, then unplanned, then planned
             // work; charged to the first position (index order) with that cause.
             let (first, n) = (unit.first_pos, unit.n_pos);
-            let mut rank = CAUSE_NONE;
-            let mut at = first;
-            for (j, &c) in self.ws.cause[first..first + n].iter().enumerate() {
-                if c < rank {
-                    rank = c;
-                    at = first + j;
+            let (rank, at) = if unit.holding_down == 1 {
+                let at = first + unit.held_sum;
+                (self.ws.cause[at], at)
+            } else {
+                let mut rank = CAUSE_NONE;
+                let mut at = first;
+                for (j, &c) in self.ws.cause[first..first + n].iter().enumerate() {
+                    if c < rank {
+                        rank = c;
+                        at = first + j;
+                    }
                 }
-            }
+                (rank, at)
+            };
             if rank != CAUSE_NONE {
                 match rank {
                     CAUSE_WAITING => self.out.down_waiting += dt,
@@ -710,16 +752,15 @@ impl<'a, 'm> Run<'a, 'm> {
 
     /// A unit goes from up to down or gains another reason to stay down.
     /// The caller reschedules the unit once its positions are set.
-    fn hold_down(&mut self, u: usize) {
+    fn hold_down(&mut self, u: usize, j: usize) {
         self.ws.units[u].holding_down += 1;
+        self.ws.units[u].held_sum += j;
     }
 
     /// Place one resupply order for `part` at `now`.
     fn order(&mut self, part: usize, now: Hours) {
-        let k = self.ws.orders[part];
-        self.ws.orders[part] += 1;
-        self.ws.on_order[part] += 1;
         let s = &mut self.ws.stores[part];
+        s.orders += 1;
         if s.lead_next == LEAD_BATCH {
             // Independent draws overlap when made together; the k-th order
             // still gets the k-th draw of the stream.
@@ -736,20 +777,26 @@ impl<'a, 'm> Run<'a, 'm> {
         po.parts_cost += self.sim.model.parts[part].price;
         let time = now + lead;
         if time < self.horizon {
-            // Keep the list latest first: (time, order number) descending.
-            // It holds a few orders, so one insertion-sort step is cheapest.
+            // Keep the list latest first. This order is the latest placed,
+            // so it goes before every arrival at or before its own time. The
+            // list holds a few orders, so one insertion-sort step is cheapest.
             let pending = &mut self.ws.stores[part].pending;
-            pending.push((time, k));
-            let mut i = pending.len() - 1;
-            while i > 0 && pending[i - 1] < pending[i] {
-                pending.swap(i - 1, i);
+            let mut i = pending.len();
+            pending.push(time);
+            while i > 0 && pending[i - 1] <= time {
+                pending[i] = pending[i - 1];
                 i -= 1;
             }
+            pending[i] = time;
+            let earliest = i + 1 == pending.len();
             let s = &self.ws.stores[part];
-            if !(s.failures.is_empty() && s.planned.is_empty()) || self.sim.all_events {
-                // It may now be the earliest awaited arrival.
+            if earliest && (!(s.failures.is_empty() && s.planned.is_empty()) || self.sim.all_events)
+            {
+                // It is now the earliest awaited arrival.
                 self.refresh_arrival(part);
             }
+        } else {
+            self.ws.stores[part].beyond += 1;
         }
     }
 
@@ -760,7 +807,7 @@ impl<'a, 'm> Run<'a, 'm> {
     #[inline]
     fn settle(&mut self, part: usize, now: Hours) {
         let s = &mut self.ws.stores[part];
-        while let Some(&(t, _)) = s.pending.last() {
+        while let Some(&t) = s.pending.last() {
             if t > now {
                 break;
             }
@@ -768,7 +815,6 @@ impl<'a, 'm> Run<'a, 'm> {
             s.area += s.on_hand as f64 * (t - s.last);
             s.last = t;
             s.on_hand += 1;
-            self.ws.on_order[part] -= 1;
         }
     }
 
@@ -779,7 +825,7 @@ impl<'a, 'm> Run<'a, 'm> {
         let s = &self.ws.stores[part];
         let awaited = !(s.failures.is_empty() && s.planned.is_empty()) || self.sim.all_events;
         let t = match s.pending.last() {
-            Some(&(t, _)) if awaited => t,
+            Some(&t) if awaited => t,
             _ => f64::INFINITY,
         };
         self.ws.arrivals.set(part, t);
@@ -879,14 +925,15 @@ impl<'a, 'm> Run<'a, 'm> {
     fn check_invariants(&self) {
         for (p, s) in self.ws.stores.iter().enumerate() {
             let waiting = (s.failures.len() + s.planned.len()) as i64;
-            let lhs = s.on_hand as i64 + self.ws.on_order[p] as i64 - waiting;
+            let on_order = (s.pending.len() as u64 + s.beyond) as i64;
+            let lhs = s.on_hand as i64 + on_order - waiting;
             assert_eq!(lhs, self.sim.policy[p].stock as i64, "stock identity");
             assert!(
                 s.on_hand == 0 || waiting == 0,
                 "spare on the shelf while demands wait"
             );
         }
-        for unit in &self.ws.units {
+        for unit in self.ws.units.iter() {
             let held = (0..unit.n_pos)
                 .filter(|&j| {
                     matches!(
@@ -896,6 +943,15 @@ impl<'a, 'm> Run<'a, 'm> {
                 })
                 .count() as u32;
             assert_eq!(held, unit.holding_down, "hold count");
+            let held_sum: usize = (0..unit.n_pos)
+                .filter(|&j| {
+                    matches!(
+                        self.ws.pos[unit.first_pos + j].status,
+                        Status::Failed | Status::Grounded | Status::Replacing { .. }
+                    )
+                })
+                .sum();
+            assert_eq!(held_sum, unit.held_sum, "held positions");
             let replacing = (0..unit.n_pos)
                 .filter(|&j| {
                     matches!(
@@ -913,7 +969,7 @@ impl<'a, 'm> Run<'a, 'm> {
         let part = self.ws.pos[idx].part;
         self.out.parts[part].failures += 1;
         let was = self.ws.pos[idx].status;
-        self.hold_down(u);
+        self.hold_down(u, j);
         if was == Status::WaitingPlanned {
             // The waiting planned demand becomes a failure: no new order, no
             // second stock-out; it joins the waiting failures now.
@@ -943,7 +999,7 @@ impl<'a, 'm> Run<'a, 'm> {
                 .retain(|&(a, b)| (a as usize, b as usize) != (u, j));
             store.failures.push_back((u as u32, j as u32));
             self.set_status(idx, Status::Grounded);
-            self.hold_down(u);
+            self.hold_down(u, j);
             self.schedule_unit(u, now);
             return;
         }
@@ -965,7 +1021,7 @@ impl<'a, 'm> Run<'a, 'm> {
             self.touch_store(part, now);
             self.ws.stores[part].on_hand -= 1;
             if planned {
-                self.hold_down(u);
+                self.hold_down(u, j);
             }
             self.start_work(u, j, planned, now);
             return;
@@ -993,6 +1049,7 @@ impl<'a, 'm> Run<'a, 'm> {
     /// Fit a new part in position `j` of unit `u` at `now` (the unit's books
     /// already brought up to `now`), release the unit's hold and set its
     /// next event.
+    #[inline(always)]
     fn fit_new_part(&mut self, u: usize, j: usize, now: Hours) {
         let idx = self.ws.units[u].first_pos + j;
         let part = self.ws.pos[idx].part;
@@ -1007,6 +1064,7 @@ impl<'a, 'm> Run<'a, 'm> {
         p.limit_op = limit.map_or(f64::INFINITY, |l| op + l);
         self.set_status(idx, Status::Working);
         self.ws.units[u].holding_down -= 1;
+        self.ws.units[u].held_sum -= j;
         self.ws.units[u].replacing -= 1;
         self.schedule_unit(u, now);
     }
@@ -1017,7 +1075,6 @@ impl<'a, 'm> Run<'a, 'm> {
     fn on_arrival(&mut self, part: usize, now: Hours) {
         self.ws.stores[part].pending.pop();
         self.touch_store(part, now);
-        self.ws.on_order[part] -= 1;
         let store = &mut self.ws.stores[part];
         if let Some((u, j)) = store.failures.pop_front() {
             let (u, j) = (u as usize, j as usize);
@@ -1031,7 +1088,7 @@ impl<'a, 'm> Run<'a, 'm> {
             let (u, j) = (u as usize, j as usize);
             self.ws.units[u].waiting_planned -= 1;
             self.advance_unit(u, now);
-            self.hold_down(u);
+            self.hold_down(u, j);
             self.start_work(u, j, true, now);
         } else {
             store.on_hand += 1;
