@@ -732,16 +732,23 @@ impl<'a, 'm> Run<'a, 'm> {
                 (rank, at)
             };
             if rank != CAUSE_NONE {
-                match rank {
-                    CAUSE_WAITING => self.out.down_waiting += dt,
-                    CAUSE_UNPLANNED => self.out.down_unplanned += dt,
-                    _ => self.out.down_planned += dt,
-                }
-                let part = self.ws.pos[at].part;
-                self.out.parts[part].down_hours += dt;
+                self.book_down(rank, at, dt);
             }
         }
         self.ws.units[u].last = now;
+    }
+
+    /// Charge `dt` unit-hours down to cause `rank` and to the part type of
+    /// position `idx`.
+    #[inline(always)]
+    fn book_down(&mut self, rank: u8, idx: usize, dt: Hours) {
+        match rank {
+            CAUSE_WAITING => self.out.down_waiting += dt,
+            CAUSE_UNPLANNED => self.out.down_unplanned += dt,
+            _ => self.out.down_planned += dt,
+        }
+        let part = self.ws.pos[idx].part;
+        self.out.parts[part].down_hours += dt;
     }
 
     fn touch_store(&mut self, part: usize, now: Hours) {
@@ -851,13 +858,8 @@ impl<'a, 'm> Run<'a, 'm> {
             let dt = done - unit.last;
             if dt > 0.0 {
                 unit.last = done;
-                if planned {
-                    self.out.down_planned += dt;
-                } else {
-                    self.out.down_unplanned += dt;
-                }
-                let part = self.ws.pos[unit.first_pos + j].part;
-                self.out.parts[part].down_hours += dt;
+                let idx = unit.first_pos + j;
+                self.book_down(self.ws.cause[idx], idx, dt);
             }
             self.fit_new_part(u, j, done);
         } else {
@@ -934,32 +936,22 @@ impl<'a, 'm> Run<'a, 'm> {
             );
         }
         for unit in self.ws.units.iter() {
-            let held = (0..unit.n_pos)
-                .filter(|&j| {
-                    matches!(
-                        self.ws.pos[unit.first_pos + j].status,
-                        Status::Failed | Status::Grounded | Status::Replacing { .. }
-                    )
-                })
-                .count() as u32;
+            let (mut held, mut held_sum, mut replacing) = (0, 0, 0);
+            for j in 0..unit.n_pos {
+                let status = self.ws.pos[unit.first_pos + j].status;
+                if matches!(
+                    status,
+                    Status::Failed | Status::Grounded | Status::Replacing { .. }
+                ) {
+                    held += 1;
+                    held_sum += j;
+                }
+                if matches!(status, Status::Replacing { .. }) {
+                    replacing += 1;
+                }
+            }
             assert_eq!(held, unit.holding_down, "hold count");
-            let held_sum: usize = (0..unit.n_pos)
-                .filter(|&j| {
-                    matches!(
-                        self.ws.pos[unit.first_pos + j].status,
-                        Status::Failed | Status::Grounded | Status::Replacing { .. }
-                    )
-                })
-                .sum();
             assert_eq!(held_sum, unit.held_sum, "held positions");
-            let replacing = (0..unit.n_pos)
-                .filter(|&j| {
-                    matches!(
-                        self.ws.pos[unit.first_pos + j].status,
-                        Status::Replacing { .. }
-                    )
-                })
-                .count() as u32;
             assert_eq!(replacing, unit.replacing, "replacement count");
         }
     }
@@ -973,14 +965,7 @@ impl<'a, 'm> Run<'a, 'm> {
         if was == Status::WaitingPlanned {
             // The waiting planned demand becomes a failure: no new order, no
             // second stock-out; it joins the waiting failures now.
-            self.ws.units[u].waiting_planned -= 1;
-            let store = &mut self.ws.stores[part];
-            store
-                .planned
-                .retain(|&(a, b)| (a as usize, b as usize) != (u, j));
-            store.failures.push_back((u as u32, j as u32));
-            self.set_status(idx, Status::Failed);
-            self.schedule_unit(u, now);
+            self.join_failures(u, j, part, Status::Failed, now);
             return;
         }
         self.demand(u, j, idx, part, false, now);
@@ -992,18 +977,26 @@ impl<'a, 'm> Run<'a, 'm> {
         if self.ws.pos[idx].status == Status::WaitingPlanned {
             // A safety-critical part reached its hard limit while waiting:
             // the unit is held down until a spare comes.
-            self.ws.units[u].waiting_planned -= 1;
-            let store = &mut self.ws.stores[part];
-            store
-                .planned
-                .retain(|&(a, b)| (a as usize, b as usize) != (u, j));
-            store.failures.push_back((u as u32, j as u32));
-            self.set_status(idx, Status::Grounded);
             self.hold_down(u, j);
-            self.schedule_unit(u, now);
+            self.join_failures(u, j, part, Status::Grounded, now);
             return;
         }
         self.demand(u, j, idx, part, true, now);
+    }
+
+    /// A planned demand of position `j` of unit `u` that waits for a spare
+    /// now holds its unit down (the caller has counted the hold): it leaves
+    /// the waiting planned replacements for the end of the waiting
+    /// failures, with `status`, and the unit's next event is set.
+    fn join_failures(&mut self, u: usize, j: usize, part: usize, status: Status, now: Hours) {
+        self.ws.units[u].waiting_planned -= 1;
+        let store = &mut self.ws.stores[part];
+        store
+            .planned
+            .retain(|&(a, b)| (a as usize, b as usize) != (u, j));
+        store.failures.push_back((u as u32, j as u32));
+        self.set_status(self.ws.units[u].first_pos + j, status);
+        self.schedule_unit(u, now);
     }
 
     /// A new demand for a spare from position `j` of unit `u` (a failure,
