@@ -172,7 +172,10 @@ impl<'a> Skeleton<'a> {
         let mut best = f64::INFINITY;
         let mut best_j = 0;
         for j in 0..NPOS {
-            let t = self.fail[u * NPOS + j].min(self.due[u * NPOS + j]);
+            let (fail, due) = (self.fail[u * NPOS + j], self.due[u * NPOS + j]);
+            // Plain comparisons: `f64::min`'s NaN rules cost a few more
+            // instructions, and no time here is NaN.
+            let t = if due < fail { due } else { fail };
             if t < best {
                 best = t;
                 best_j = j;
@@ -246,7 +249,8 @@ impl<'a> Skeleton<'a> {
             let u = (k & 63) as usize;
             let idx = u * NPOS + self.next_j[u] as usize;
             let p = self.f.part[idx] as usize;
-            self.op[u] = self.fail[idx].min(self.due[idx]);
+            let (fail, due) = (self.fail[idx], self.due[idx]);
+            self.op[u] = if due < fail { due } else { fail };
             self.last[u] = tu;
             if self.head[p] == self.tail[p] {
                 while self.n_pending[p] > 0 && self.pending[p][self.n_pending[p] - 1] <= tu {
