@@ -8,9 +8,10 @@
 //! no books at all: no costs, no down-time causes, no stock area, no
 //! separate queue for planned work (a planned demand that finds no spare
 //! holds its unit down, so the skeleton's availability is lower than the
-//! engine's), unplanned durations throughout, no hard limits, and a 64-bit
-//! tournament whose near-ties are not broken exactly. It is not a model of
-//! anything and no result of the project comes from it.
+//! engine's), unplanned durations throughout, no hard limits. Its events go
+//! in the engine's exact order: the same tournament keys (`time bits << 64
+//! | class << 32 | unit`) and the same per-position reading keys. It is not
+//! a model of anything and no result of the project comes from it.
 //!
 //! It runs every trial once drawing its random numbers and recording them,
 //! then times two passes over the same trials: the skeleton replaying the
@@ -39,16 +40,60 @@ const LEAVES: usize = 64;
 /// Room for the orders on their way and the waiting demands of one part type.
 const ROOM: usize = 128;
 
-/// Where the skeleton's numbers come from.
-enum Src<'a> {
-    /// Drawn from the trial's streams, and recorded.
-    Draw {
-        lives: Vec<Stream>,
-        leads: Vec<Stream>,
-        rec: &'a mut Rec,
-    },
-    /// Read back from a record.
-    Replay { rec: &'a Rec },
+/// Where the skeleton's numbers come from (one skeleton is compiled for
+/// each, so the replay pays nothing for the drawing).
+trait Numbers {
+    fn ages(&self) -> [f64; NIDX];
+    fn life(&mut self, f: &Fleet, idx: usize, age: f64) -> f64;
+    fn lead(&mut self, f: &Fleet, p: usize) -> f64;
+}
+
+/// Drawn from the trial's streams, and recorded.
+struct Drawing<'a> {
+    lives: Vec<Stream>,
+    leads: Vec<Stream>,
+    rec: &'a mut Rec,
+}
+
+impl Numbers for Drawing<'_> {
+    fn ages(&self) -> [f64; NIDX] {
+        self.rec.age
+    }
+    fn life(&mut self, f: &Fleet, idx: usize, age: f64) -> f64 {
+        let x = f.life[f.part[idx] as usize].sample_residual(age, &mut self.lives[idx]);
+        self.rec.lives[idx].push(x);
+        x
+    }
+    fn lead(&mut self, f: &Fleet, p: usize) -> f64 {
+        let x = f.lead[p].sample(&mut self.leads[p]);
+        self.rec.leads[p].push(x);
+        x
+    }
+}
+
+/// Read back from a record, in order.
+struct Replaying<'a> {
+    rec: &'a Rec,
+    at_life: [usize; NIDX],
+    at_lead: [usize; NP],
+}
+
+impl Numbers for Replaying<'_> {
+    fn ages(&self) -> [f64; NIDX] {
+        self.rec.age
+    }
+    #[inline]
+    fn life(&mut self, _: &Fleet, idx: usize, _: f64) -> f64 {
+        let x = self.rec.lives[idx][self.at_life[idx]];
+        self.at_life[idx] += 1;
+        x
+    }
+    #[inline]
+    fn lead(&mut self, _: &Fleet, p: usize) -> f64 {
+        let x = self.rec.leads[p][self.at_lead[p]];
+        self.at_lead[p] += 1;
+        x
+    }
 }
 
 /// One trial's initial ages, and every number it drew, in order.
@@ -70,11 +115,13 @@ struct Fleet {
     horizon: f64,
 }
 
-struct Skeleton<'a> {
+struct Skeleton<'a, N: Numbers> {
     f: &'a Fleet,
-    node: [u64; 2 * LEAVES],
-    fail: [f64; NIDX],
-    due: [f64; NIDX],
+    node: [u128; 2 * LEAVES],
+    /// Per position, its next event as the engine keys it: the unit-clock
+    /// reading of its failure or its due, whichever is first, `bits << 1 |
+    /// is_due` (a failure first at the same reading).
+    next: [u64; NIDX],
     op: [f64; NU],
     last: [f64; NU],
     down: [bool; NU],
@@ -89,20 +136,15 @@ struct Skeleton<'a> {
     tail: [usize; NP],
     awaited: [f64; NP],
     first: (f64, usize),
-    src: Src<'a>,
-    /// While replaying: the next number to read back, per position and per
-    /// part type.
-    at_life: [usize; NIDX],
-    at_lead: [usize; NP],
+    src: N,
 }
 
-impl<'a> Skeleton<'a> {
-    fn new(f: &'a Fleet, src: Src<'a>) -> Self {
+impl<'a, N: Numbers> Skeleton<'a, N> {
+    fn new(f: &'a Fleet, src: N) -> Self {
         Skeleton {
             f,
-            node: [u64::MAX; 2 * LEAVES],
-            fail: [0.0; NIDX],
-            due: [0.0; NIDX],
+            node: [u128::MAX; 2 * LEAVES],
+            next: [0; NIDX],
             op: [0.0; NU],
             last: [0.0; NU],
             down: [false; NU],
@@ -116,16 +158,16 @@ impl<'a> Skeleton<'a> {
             awaited: [f64::INFINITY; NP],
             first: (f64::INFINITY, 0),
             src,
-            at_life: [0; NIDX],
-            at_lead: [0; NP],
         }
     }
 
-    fn set(&mut self, u: usize, t: f64) {
+    /// The unit's next event in the tournament, keyed exactly as the
+    /// engine keys it: `time bits << 64 | class << 32 | unit`.
+    fn set(&mut self, u: usize, t: f64, class: u64) {
         let mut cur = if t < self.f.horizon {
-            (t.to_bits() & !63) | u as u64
+            ((t.to_bits() as u128) << 64) | ((class as u128) << 32) | u as u128
         } else {
-            u64::MAX
+            u128::MAX
         };
         let mut i = LEAVES + u;
         self.node[i] = cur;
@@ -138,51 +180,26 @@ impl<'a> Skeleton<'a> {
     }
 
     fn life(&mut self, idx: usize, age: f64) -> f64 {
-        match &mut self.src {
-            Src::Draw { lives, rec, .. } => {
-                let x =
-                    self.f.life[self.f.part[idx] as usize].sample_residual(age, &mut lives[idx]);
-                rec.lives[idx].push(x);
-                x
-            }
-            Src::Replay { rec } => {
-                let x = rec.lives[idx][self.at_life[idx]];
-                self.at_life[idx] += 1;
-                x
-            }
-        }
+        self.src.life(self.f, idx, age)
     }
 
     fn lead(&mut self, p: usize) -> f64 {
-        match &mut self.src {
-            Src::Draw { leads, rec, .. } => {
-                let x = self.f.lead[p].sample(&mut leads[p]);
-                rec.leads[p].push(x);
-                x
-            }
-            Src::Replay { rec } => {
-                let x = rec.leads[p][self.at_lead[p]];
-                self.at_lead[p] += 1;
-                x
-            }
-        }
+        self.src.lead(self.f, p)
     }
 
     fn schedule(&mut self, u: usize, now: f64) {
-        let mut best = f64::INFINITY;
+        let mut best = u64::MAX;
         let mut best_j = 0;
         for j in 0..NPOS {
-            let (fail, due) = (self.fail[u * NPOS + j], self.due[u * NPOS + j]);
-            // Plain comparisons: `f64::min`'s NaN rules cost a few more
-            // instructions, and no time here is NaN.
-            let t = if due < fail { due } else { fail };
-            if t < best {
-                best = t;
+            let k = self.next[u * NPOS + j];
+            if k < best {
+                best = k;
                 best_j = j;
             }
         }
         self.next_j[u] = best_j as u8;
-        self.set(u, now + (best - self.op[u]));
+        let reading = f64::from_bits(best >> 1);
+        self.set(u, now + (reading - self.op[u]), 2 + (best & 1));
     }
 
     fn set_awaited(&mut self, p: usize) {
@@ -211,27 +228,27 @@ impl<'a> Skeleton<'a> {
         let x = self.life(idx, 0.0);
         self.last[u] = t;
         self.down[u] = false;
-        self.fail[idx] = op + x;
-        self.due[idx] = op + self.f.interval[self.f.part[idx] as usize];
+        let interval = self.f.interval[self.f.part[idx] as usize];
+        self.next[idx] = reading_key(op + x, op + interval);
         self.schedule(u, t);
     }
 
     /// Run the trial; returns the fleet's up hours.
     fn run(&mut self) -> f64 {
-        for (idx, age) in self.initial_ages().into_iter().enumerate() {
+        for (idx, age) in self.src.ages().into_iter().enumerate() {
             let x = self.life(idx, age);
-            self.fail[idx] = x;
-            self.due[idx] = (self.f.interval[self.f.part[idx] as usize] - age).max(0.0);
+            let due = (self.f.interval[self.f.part[idx] as usize] - age).max(0.0);
+            self.next[idx] = reading_key(x, due);
         }
         for u in 0..NU {
             self.schedule(u, 0.0);
         }
         loop {
             let k = self.node[1];
-            let tu = if k == u64::MAX {
+            let tu = if k == u128::MAX {
                 f64::INFINITY
             } else {
-                f64::from_bits(k & !63)
+                f64::from_bits((k >> 64) as u64)
             };
             let (ta, p) = self.first;
             if ta < tu {
@@ -246,11 +263,10 @@ impl<'a> Skeleton<'a> {
             if !tu.is_finite() {
                 break;
             }
-            let u = (k & 63) as usize;
+            let u = (k & 0xFFFF_FFFF) as usize;
             let idx = u * NPOS + self.next_j[u] as usize;
             let p = self.f.part[idx] as usize;
-            let (fail, due) = (self.fail[idx], self.due[idx]);
-            self.op[u] = if due < fail { due } else { fail };
+            self.op[u] = f64::from_bits(self.next[idx] >> 1);
             self.last[u] = tu;
             if self.head[p] == self.tail[p] {
                 while self.n_pending[p] > 0 && self.pending[p][self.n_pending[p] - 1] <= tu {
@@ -276,7 +292,7 @@ impl<'a> Skeleton<'a> {
                 self.queue[p][self.tail[p] % ROOM] = idx as u16;
                 self.tail[p] += 1;
                 self.down[u] = true;
-                self.set(u, f64::INFINITY);
+                self.set(u, f64::INFINITY, 0);
                 self.set_awaited(p);
             }
         }
@@ -289,13 +305,13 @@ impl<'a> Skeleton<'a> {
         }
         up
     }
+}
 
-    fn initial_ages(&self) -> [f64; NIDX] {
-        match &self.src {
-            Src::Draw { rec, .. } => rec.age,
-            Src::Replay { rec } => rec.age,
-        }
-    }
+/// A position's next event as one sortable integer, as the engine has it.
+fn reading_key(fail: f64, due: f64) -> u64 {
+    let f = (fail + 0.0).to_bits() << 1;
+    let d = ((due + 0.0).to_bits() << 1) | 1;
+    f.min(d)
 }
 
 fn fleet(model: &Model) -> Fleet {
@@ -352,7 +368,7 @@ fn record(model: &Model, f: &Fleet, trial: u64) -> (Rec, f64) {
         .collect();
     let up = Skeleton::new(
         f,
-        Src::Draw {
+        Drawing {
             lives,
             leads,
             rec: &mut rec,
@@ -367,7 +383,14 @@ fn record(model: &Model, f: &Fleet, trial: u64) -> (Rec, f64) {
 #[inline(never)]
 fn replay_all(f: &Fleet, recs: &[Rec]) -> f64 {
     recs.iter()
-        .map(|rec| Skeleton::new(f, Src::Replay { rec }).run())
+        .map(|rec| {
+            let numbers = Replaying {
+                rec,
+                at_life: [0; NIDX],
+                at_lead: [0; NP],
+            };
+            Skeleton::new(f, numbers).run()
+        })
         .sum()
 }
 
