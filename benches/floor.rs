@@ -104,7 +104,6 @@ struct Rec {
 }
 
 /// What the skeleton needs of the model and the policy.
-#[derive(Clone)]
 struct Fleet {
     part: [u8; NIDX],
     life: [Life; NP],
@@ -307,7 +306,9 @@ impl<'a, N: Numbers> Skeleton<'a, N> {
     }
 }
 
-/// A position's next event as one sortable integer, as the engine has it.
+/// A position's next event as one sortable integer: a copy of the
+/// engine's (private) `reading_key`, so that the skeleton's scan is the
+/// engine's.
 fn reading_key(fail: f64, due: f64) -> u64 {
     let f = (fail + 0.0).to_bits() << 1;
     let d = ((due + 0.0).to_bits() << 1) | 1;
