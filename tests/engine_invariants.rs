@@ -18,66 +18,7 @@ fn load(name: &str) -> Model {
 /// A scenario that exercises block replacement, a safety-critical part with
 /// a hard limit, several positions of one part type, zero stock, and every
 /// life family.
-const MIXED: &str = r#"
-[scenario]
-name = "mixed"
-horizon_hours = 40000
-downtime_penalty_per_hour = 10
-target_availability = 0.9
-seed = 3
-
-[defaults]
-holding = { fraction_of_price = 0.2, per_hours = 8760 }
-lead_time = { dist = "lognormal", median_hours = 300, log_sd = 0.7 }
-
-[parts.a]
-life = { dist = "weibull", shape = 2.0, scale = 3000, location = 200 }
-price = 100
-labour = { planned = 1, unplanned = 3 }
-duration_hours = { planned = 5, unplanned = 20 }
-hard_limit_hours = 2500
-safety_critical = true
-
-[parts.b]
-life = { dist = "lognormal", mu = 8.0, sigma = 0.8 }
-price = 50
-labour = { planned = 1, unplanned = 3 }
-duration_hours = { planned = 2, unplanned = 8 }
-
-[parts.c]
-life = { dist = "gamma", shape = 3.0, scale = 800 }
-price = 20
-labour = { planned = 1, unplanned = 2 }
-duration_hours = { planned = 1, unplanned = 4 }
-lead_time = { dist = "gamma", mean_hours = 200, cv = 1.2 }
-
-[parts.d]
-life = { dist = "exponential", mean = 5000 }
-price = 10
-labour = { planned = 1, unplanned = 2 }
-duration_hours = { planned = 0, unplanned = 0 }
-lead_time = { dist = "fixed", hours = 100 }
-
-[units.m]
-positions = ["a", "a", "b", "c", "c", "c", "d"]
-
-[[fleet]]
-unit = "m"
-count = 9
-initial_age = { kind = "uniform", low_hours = 0, high_hours = 4000 }
-
-[policies.blocky]
-a = { rule = "block", interval_hours = 2000, stock = 1 }
-b = { rule = "age", interval_hours = 2500, stock = 0 }
-c = { rule = "block", interval_hours = 1500, stock = 2 }
-d = { rule = "run_to_failure", stock = 0 }
-
-[policies.aged]
-a = { rule = "age", interval_hours = 2500, stock = 0 }
-b = { rule = "run_to_failure", stock = 1 }
-c = { rule = "age", interval_hours = 1000, stock = 0 }
-d = { rule = "run_to_failure", stock = 3 }
-"#;
+const MIXED: &str = include_str!("data/mixed.toml");
 
 #[test]
 fn every_trial_keeps_the_books() {
@@ -232,58 +173,7 @@ fn same_sum(a: f64, b: f64) -> bool {
 /// fixed time; zero repair times; no stock at all for one part type; and a
 /// safety-critical part whose hard limit falls inside its block interval's
 /// waits.
-const TIES: &str = r#"
-[scenario]
-name = "ties"
-horizon_hours = 20000
-downtime_penalty_per_hour = 5
-target_availability = 0.9
-seed = 11
-
-[defaults]
-holding = { fraction_of_price = 0.2, per_hours = 8760 }
-lead_time = { dist = "fixed", hours = 0 }
-
-[parts.a]
-life = { dist = "weibull", shape = 3.0, scale = 2000 }
-price = 10
-labour = { planned = 1, unplanned = 2 }
-duration_hours = { planned = 0, unplanned = 0 }
-
-[parts.b]
-life = { dist = "exponential", mean = 1500 }
-price = 20
-labour = { planned = 1, unplanned = 2 }
-duration_hours = { planned = 4, unplanned = 8 }
-lead_time = { dist = "fixed", hours = 250 }
-
-[parts.c]
-life = { dist = "weibull", shape = 2.0, scale = 3000 }
-price = 30
-labour = { planned = 1, unplanned = 2 }
-duration_hours = { planned = 3, unplanned = 6 }
-lead_time = { dist = "fixed", hours = 400 }
-hard_limit_hours = 1800
-safety_critical = true
-
-[units.m]
-positions = ["a", "a", "b", "c"]
-
-[[fleet]]
-unit = "m"
-count = 6
-initial_age = "new"
-
-[policies.grid]
-a = { rule = "block", interval_hours = 1000, stock = 1 }
-b = { rule = "run_to_failure", stock = 0 }
-c = { rule = "block", interval_hours = 1500, stock = 0 }
-
-[policies.aged]
-a = { rule = "age", interval_hours = 1200, stock = 0 }
-b = { rule = "age", interval_hours = 900, stock = 1 }
-c = { rule = "age", interval_hours = 1700, stock = 1 }
-"#;
+const TIES: &str = include_str!("data/ties.toml");
 
 #[test]
 fn the_event_loops_shortcuts_change_no_result() {
