@@ -6,7 +6,11 @@
 //! initial ages, lead times per part type), from the same streams, with
 //! nothing else ([`Simulator::draw_only`]). Each is timed three times,
 //! alternately, and the median is reported. With `-- --million` it runs
-//! 1 000 000 trials instead and reports the peak resident memory.
+//! 1 000 000 trials instead and reports the peak resident memory. With
+//! `-- --one-thread N` it only runs trials `0..N` of the engine on the
+//! calling thread and prints their events, for instruction counts:
+//!
+//! valgrind --tool=callgrind --toggle-collect='*one_thread*' target/release/deps/engine-* --one-thread 200
 
 use std::time::Instant;
 
@@ -26,12 +30,32 @@ fn median(mut v: Vec<f64>) -> f64 {
     v[v.len() / 2]
 }
 
+/// Trials `0..n` on the calling thread; returns their events.
+#[inline(never)]
+fn one_thread(sim: &Simulator<'_>, n: u64) -> u64 {
+    let mut ws = Workspace::default();
+    (0..n).map(|t| sim.run(t, &mut ws).events).sum()
+}
+
 fn main() {
-    let million = std::env::args().any(|a| a == "--million");
+    let args: Vec<String> = std::env::args().collect();
+    let million = args.iter().any(|a| a == "--million");
     let path = concat!(env!("CARGO_MANIFEST_DIR"), "/scenarios/b1.toml");
     let model = wearout::scenario::load(std::path::Path::new(path)).expect("b1 loads");
     let policy = model.policy("reference").expect("reference policy").clone();
     let sim = Simulator::new(&model, &policy);
+
+    if let Some(i) = args.iter().position(|a| a == "--one-thread") {
+        let n: u64 = args
+            .get(i + 1)
+            .and_then(|s| s.parse().ok())
+            .expect("--one-thread N: a number of trials");
+        println!(
+            "B1 reference policy, {n} trials on one thread: {} events",
+            one_thread(&sim, n)
+        );
+        return;
+    }
 
     if million {
         let m: u64 = 1_000_000;
