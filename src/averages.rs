@@ -64,7 +64,7 @@ pub fn plan_on_averages(model: &Model, policy: &Policy) -> AveragesPlan {
         if fails[p] {
             let d = installed[p] as f64 / cycle[p];
             let cover = if d > 0.0 {
-                policy.parts[p].stock as f64 / d
+                policy.parts[p].stock.total() as f64 / d
             } else {
                 f64::INFINITY
             };
@@ -106,7 +106,8 @@ pub fn plan_on_averages(model: &Model, policy: &Policy) -> AveragesPlan {
             part.labour_planned
         };
         let rate = n / h;
-        let on_hand = (policy.parts[p].stock as f64 - rate * part.lead_time.mean()).max(0.0);
+        let on_hand =
+            (policy.parts[p].stock.total() as f64 - rate * part.lead_time.mean()).max(0.0);
         spend += n * (part.price + labour) + on_hand * part.holding_per_hour * h;
     }
     AveragesPlan {

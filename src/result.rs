@@ -167,7 +167,7 @@ impl EvaluateJson {
                     name: pt.name.clone(),
                     rule: pp.rule.kind().to_string(),
                     interval: pp.rule.interval(),
-                    stock: pp.stock,
+                    stock: pp.stock.total(),
                     failures: m.failures.mean(),
                     planned: m.planned.mean(),
                     stockouts: m.stockouts.mean(),
@@ -292,7 +292,7 @@ impl FrontierJson {
                             interval: pp.rule.interval(),
                         },
                     );
-                    stock.insert(part.name.clone(), pp.stock);
+                    stock.insert(part.name.clone(), pp.stock.total());
                 }
                 FrontierPolicyJson {
                     name: c.policy.name.clone(),

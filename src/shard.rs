@@ -40,7 +40,7 @@ use std::time::Instant;
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 
-use crate::model::{Model, PartPolicy, Policy, Rule};
+use crate::model::{Model, PartPolicy, Policy, Rule, Stock};
 use crate::outcome::{PartOutcome, TrialOutcome};
 use crate::run::{BLOCK, Progress, for_each_trial};
 use crate::sim::Simulator;
@@ -247,7 +247,14 @@ pub struct PartRecord {
     /// The interval in hours, for reading; `interval_bits` is exact.
     pub interval: Option<f64>,
     pub interval_bits: Option<String>,
+    /// The total stock (the one level without sites).
     pub stock: u32,
+    /// With sites: the level at each site, in site order.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stock_sites: Option<Vec<u32>>,
+    /// With sites: the level at the depot.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stock_depot: Option<u32>,
 }
 
 /// A policy in a shard header.
@@ -271,7 +278,11 @@ impl PolicyRecord {
                     rule: pp.rule.kind().to_string(),
                     interval: pp.rule.interval(),
                     interval_bits: pp.rule.interval().map(bits),
-                    stock: pp.stock,
+                    stock: pp.stock.total(),
+                    stock_sites: (!pp.stock.is_single() || model.has_sites())
+                        .then(|| pp.stock.site_levels().collect()),
+                    stock_depot: (!pp.stock.is_single() || model.has_sites())
+                        .then(|| pp.stock.depot()),
                 })
                 .collect(),
         }
@@ -313,10 +324,25 @@ impl PolicyRecord {
                     ));
                 }
             };
-            parts.push(PartPolicy {
-                rule,
-                stock: r.stock,
-            });
+            let stock = match (&r.stock_sites, r.stock_depot) {
+                (None, None) => Stock::single(r.stock),
+                (Some(s), Some(d)) if !s.is_empty() => Stock::at_sites(s, d),
+                _ => {
+                    return Err(format!(
+                        "policy `{}`: part type `{}` has an incomplete stock per site",
+                        self.name, r.part
+                    ));
+                }
+            };
+            if stock.sites() != model.sites.len() || stock.total() != r.stock {
+                return Err(format!(
+                    "policy `{}`: the stock of part type `{}` does not fit the scenario's {} sites",
+                    self.name,
+                    r.part,
+                    model.sites.len()
+                ));
+            }
+            parts.push(PartPolicy { rule, stock });
         }
         Ok(Policy {
             name: self.name.clone(),

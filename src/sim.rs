@@ -515,7 +515,7 @@ impl<'a, 'm> Run<'a, 'm> {
         for (p, pp) in sim.policy.iter().enumerate() {
             let leads = seed.stream(StreamKey::LeadTimes { part: p as u32 });
             if let Some(s) = ws.stores.get_mut(p) {
-                s.on_hand = pp.stock;
+                s.on_hand = pp.stock.site(0);
                 s.failures.clear();
                 s.planned.clear();
                 s.area = 0.0;
@@ -527,7 +527,7 @@ impl<'a, 'm> Run<'a, 'm> {
                 s.beyond = 0;
             } else {
                 ws.stores.push(Store {
-                    on_hand: pp.stock,
+                    on_hand: pp.stock.site(0),
                     failures: VecDeque::new(),
                     planned: VecDeque::new(),
                     area: 0.0,
@@ -929,7 +929,11 @@ impl<'a, 'm> Run<'a, 'm> {
             let waiting = (s.failures.len() + s.planned.len()) as i64;
             let on_order = (s.pending.len() as u64 + s.beyond) as i64;
             let lhs = s.on_hand as i64 + on_order - waiting;
-            assert_eq!(lhs, self.sim.policy[p].stock as i64, "stock identity");
+            assert_eq!(
+                lhs,
+                self.sim.policy[p].stock.site(0) as i64,
+                "stock identity"
+            );
             assert!(
                 s.on_hand == 0 || waiting == 0,
                 "spare on the shelf while demands wait"

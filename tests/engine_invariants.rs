@@ -139,7 +139,7 @@ fn policies_share_their_futures() {
     let m = load("b0");
     let mut rich = m.policy("reference").unwrap().clone();
     for p in &mut rich.parts {
-        p.stock += 5;
+        p.stock.add(5, false);
     }
     let base = m.policy("reference").unwrap().clone();
     let a = evaluate(&m, &base, 0..200, m.target, &Quiet).unwrap();

@@ -165,7 +165,7 @@ fn frontier_validation_merge_equals_single_run() {
     let mut more = base.clone();
     more.name = "more stock".into();
     for p in &mut more.parts {
-        p.stock += 1;
+        p.stock.add(1, false);
     }
     let mut rtf = base.clone();
     rtf.name = "run to failure".into();
@@ -331,7 +331,7 @@ fn refuses_different_policies() {
     );
     // Same name, another stock level.
     let mut c = a.clone();
-    c.parts[0].stock += 1;
+    c.parts[0].stock.add(1, false);
     refused(
         &two_runs((&m, &s, &a, t), (&m, &s, &c, t), 20),
         &[

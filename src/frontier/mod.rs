@@ -36,7 +36,7 @@ pub mod lp;
 use std::collections::{HashMap, HashSet};
 use std::ops::Range;
 
-use crate::model::{CostBasis, CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule};
+use crate::model::{CostBasis, CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule, Stock};
 use crate::run::Progress;
 use crate::sim::{ActiveParts, Simulator};
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
@@ -189,7 +189,10 @@ impl Options {
                 let mut v = Vec::new();
                 for &rule in &ps.rules {
                     for stock in ps.stock_min..=ps.stock_max {
-                        v.push(PartPolicy { rule, stock });
+                        v.push(PartPolicy {
+                            rule,
+                            stock: Stock::single(stock),
+                        });
                     }
                 }
                 v
@@ -204,7 +207,7 @@ impl Options {
             parts: combo
                 .iter()
                 .enumerate()
-                .map(|(p, &o)| self.per_part[p][o as usize])
+                .map(|(p, &o)| self.per_part[p][o as usize].clone())
                 .collect(),
         }
     }
@@ -484,26 +487,27 @@ pub fn search(
             .per_part
             .iter()
             .enumerate()
-            .flat_map(|(p, opts)| opts.iter().map(move |pp| (p, *pp)))
+            .flat_map(|(p, opts)| opts.iter().map(move |pp| (p, pp.clone())))
             .collect();
         progress.phase("screening", tasks.len() as u64 * screen_n);
         use rayon::prelude::*;
         let results: Vec<Option<Screened>> = tasks
             .par_iter()
-            .map_init(crate::sim::Workspace::default, |ws, &(p, pp)| {
+            .map_init(crate::sim::Workspace::default, |ws, (p, pp)| {
+                let p = *p;
                 if progress.cancelled() {
                     return None;
                 }
                 let mut parts: Vec<PartPolicy> = vec![
                     PartPolicy {
                         rule: Rule::RunToFailure,
-                        stock: 0,
+                        stock: Stock::single(0),
                     };
                     n_parts
                 ];
-                parts[p] = pp;
+                parts[p] = pp.clone();
                 let sim = Simulator::with_parts(model, &parts, ActiveParts::only(n_parts, p));
-                let capital = pp.stock as f64 * model.parts[p].price;
+                let capital = pp.stock.total() as f64 * model.parts[p].price;
                 let mut down = Vec::with_capacity(screen_n as usize);
                 let mut cost = Vec::with_capacity(screen_n as usize);
                 for t in 0..screen_n {
