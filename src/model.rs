@@ -341,14 +341,15 @@ impl Stock {
     }
 }
 
-/// The one level, or the site levels separated by `/` and `+ depot N`.
+/// The one level, or the site levels separated by `/`, and `+ depot N`
+/// when the depot holds any.
 impl std::fmt::Display for Stock {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         write!(f, "{}", self.first)?;
         for s in &self.rest {
             write!(f, "/{s}")?;
         }
-        if self.depot > 0 || !self.rest.is_empty() {
+        if self.depot > 0 {
             write!(f, " + depot {}", self.depot)?;
         }
         Ok(())
@@ -392,7 +393,12 @@ impl Policy {
                     Rule::Age(x) => format!("A{}", fmt_hours(x)),
                     Rule::Block(x) => format!("B{}", fmt_hours(x)),
                 };
-                format!("{} {} S{}", t.name, rule, p.stock)
+                let depot = if model.depot.is_some() && p.stock.depot() == 0 {
+                    " + depot 0"
+                } else {
+                    ""
+                };
+                format!("{} {} S{}{depot}", t.name, rule, p.stock)
             })
             .collect::<Vec<_>>()
             .join("; ")

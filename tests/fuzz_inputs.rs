@@ -475,8 +475,9 @@ fn exercise(model: &Model, text: &str) {
         if est.max_trial_events > FUZZ_MAX_EVENTS || est.seconds > FUZZ_MAX_SECONDS {
             continue;
         }
-        let s = wearout::run::evaluate(model, policy, 0..trials, model.target, &Quiet)
-            .expect("not cancelled");
+        let s =
+            wearout::run::evaluate_counting_units(model, policy, 0..trials, model.target, &Quiet)
+                .expect("not cancelled");
         let json = wearout::result::EvaluateJson::new(model, &s, &plan);
         let single = serde_json::to_string(&json).expect("serialises");
         // The same run as two shards, merged.

@@ -1,0 +1,147 @@
+//! Units up over a trial: from the moments units go down and come up, the
+//! hours with exactly `m` units up (fleet-wide and per site) and the hours
+//! every site has its ready count.
+//!
+//! Owns: the log of up and down moments and its one sweep at the end of a
+//! trial. The event loop logs a unit going down and coming up (a moment
+//! may lie ahead of the loop's clock: work that nothing can interrupt is
+//! finished within its demand's event), so the log is sorted once before
+//! the sweep. Moments at or after the horizon do not count.
+//! May use: `dist` (hours). No randomness.
+
+use crate::dist::Hours;
+
+/// One change: at `time`, a unit of `site` goes down (`-1`) or comes up (`+1`).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(super) struct Change {
+    pub time: Hours,
+    pub site: u32,
+    pub delta: i32,
+}
+
+/// What the sweep fills in.
+pub(super) struct Counts<'a> {
+    /// Hours with exactly `m` units of the fleet up (length units + 1).
+    pub fleet: &'a mut [Hours],
+    /// Per site: hours with exactly `m` of its units up (each of length
+    /// its units + 1; empty slice of slices to skip).
+    pub sites: &'a mut [Vec<Hours>],
+    /// Per site: hours with at least its ready count up (empty to skip).
+    pub site_ready: &'a mut [Hours],
+}
+
+/// Sweep the changes over `[0, horizon]`, every unit up at time 0.
+/// `units` holds each site's unit count, `at_least` each site's ready count
+/// (or `None` without a ready-units target). Returns the hours during which
+/// every site had its ready count up (0 without a target).
+pub(super) fn sweep(
+    changes: &mut [Change],
+    horizon: Hours,
+    units: &[u32],
+    at_least: Option<&[u32]>,
+    out: Counts<'_>,
+) -> Hours {
+    changes.sort_unstable_by(|a, b| a.time.total_cmp(&b.time));
+    let mut up: Vec<u32> = units.to_vec();
+    let mut fleet_up: u32 = units.iter().sum();
+    // Sites below their ready count.
+    let mut short = 0usize;
+    if let Some(k) = at_least {
+        short = up.iter().zip(k).filter(|(u, k)| u < k).count();
+    }
+    let mut ready = 0.0;
+    let mut last = 0.0;
+    let mut book = |to: Hours, up: &[u32], fleet_up: u32, short: usize, out: &mut Counts<'_>| {
+        let dt = to - last;
+        if dt <= 0.0 {
+            return;
+        }
+        out.fleet[fleet_up as usize] += dt;
+        for (s, hist) in out.sites.iter_mut().enumerate() {
+            hist[up[s] as usize] += dt;
+        }
+        if let Some(k) = at_least {
+            for (s, r) in out.site_ready.iter_mut().enumerate() {
+                if up[s] >= k[s] {
+                    *r += dt;
+                }
+            }
+            if short == 0 {
+                ready += dt;
+            }
+        }
+        last = to;
+    };
+    let mut out = out;
+    for c in changes.iter() {
+        if c.time >= horizon {
+            break;
+        }
+        book(c.time, &up, fleet_up, short, &mut out);
+        let s = c.site as usize;
+        let before = at_least.is_some_and(|k| up[s] < k[s]);
+        if c.delta < 0 {
+            up[s] -= 1;
+            fleet_up -= 1;
+        } else {
+            up[s] += 1;
+            fleet_up += 1;
+        }
+        let after = at_least.is_some_and(|k| up[s] < k[s]);
+        match (before, after) {
+            (false, true) => short += 1,
+            (true, false) => short -= 1,
+            _ => {}
+        }
+    }
+    book(horizon, &up, fleet_up, short, &mut out);
+    ready
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn ch(time: Hours, site: u32, delta: i32) -> Change {
+        Change { time, site, delta }
+    }
+
+    #[test]
+    fn hours_by_units_up_add_to_the_horizon_by_hand() {
+        // Two sites of 2 and 1 units, horizon 10. Site 0 loses a unit over
+        // [2, 5), site 1 its unit over [4, 8) (logged out of order, as the
+        // loop may), and site 0 another over [9, 12) past the horizon.
+        let mut changes = vec![
+            ch(5.0, 0, 1),
+            ch(2.0, 0, -1),
+            ch(4.0, 1, -1),
+            ch(8.0, 1, 1),
+            ch(9.0, 0, -1),
+            ch(12.0, 0, 1),
+        ];
+        let mut fleet = vec![0.0; 4];
+        let mut sites = vec![vec![0.0; 3], vec![0.0; 2]];
+        let mut site_ready = vec![0.0; 2];
+        let ready = sweep(
+            &mut changes,
+            10.0,
+            &[2, 1],
+            Some(&[2, 1]),
+            Counts {
+                fleet: &mut fleet,
+                sites: &mut sites,
+                site_ready: &mut site_ready,
+            },
+        );
+        // Fleet: 3 up on [0,2) [8,9): 3 h; 2 up on [2,4) [5,8) [9,10): 6 h;
+        // 1 up on [4,5): 1 h.
+        assert_eq!(fleet, vec![0.0, 1.0, 6.0, 3.0]);
+        // Site 0: 2 up on [0,2) [5,9): 6 h; 1 up on [2,5) [9,10): 4 h.
+        assert_eq!(sites[0], vec![0.0, 4.0, 6.0]);
+        // Site 1: up except [4, 8).
+        assert_eq!(sites[1], vec![4.0, 6.0]);
+        assert_eq!(site_ready, vec![6.0, 6.0]);
+        // Both at their counts on [0,2) and [8,9).
+        assert_eq!(ready, 3.0);
+    }
+}
