@@ -265,6 +265,19 @@ impl NegativeBinomial {
             (self.mean - sf) + self.sum_down(s - 1, |k| sf - f64::from(k))
         }
     }
+
+    /// Expected stock on hand `E[(s - X)+]`: summed directly below the
+    /// mean, else `s - m + EBO(s)`.
+    pub fn expected_on_hand(&self, s: u32) -> f64 {
+        let sf = f64::from(s);
+        if s == 0 {
+            0.0
+        } else if sf <= self.mean {
+            self.sum_down(s - 1, |k| sf - f64::from(k))
+        } else {
+            (sf - self.mean) + self.backorders(s)
+        }
+    }
 }
 
 /// The law of a site's pipeline (units due in): Poisson, or the
@@ -359,7 +372,10 @@ impl PipelineLaw {
 
     /// Expected stock on hand `E[(s - X)+] = s - m + EBO(s)`.
     pub fn expected_on_hand(&self, s: u32) -> f64 {
-        (f64::from(s) - self.mean() + self.backorders(s)).max(0.0)
+        match self {
+            PipelineLaw::Poisson(p) => p.expected_on_hand(s),
+            PipelineLaw::NegativeBinomial(nb) => nb.expected_on_hand(s),
+        }
     }
 }
 
@@ -1395,7 +1411,7 @@ impl MachineRepair {
     fn uniformize(
         &self,
         a: f64,
-        weight: impl Fn(u32, f64) -> f64,
+        mut weight: impl FnMut(u32) -> f64,
         rest: impl Fn(u32) -> f64,
     ) -> Vec<f64> {
         let m = self.states();
@@ -1405,20 +1421,9 @@ impl MachineRepair {
         v[0] = 1.0;
         let mut next = vec![0.0; m];
         let mut acc = vec![0.0; m];
-        let pois = poisson(a);
-        // Compensated running cdf of Poisson(a), for the weights.
-        let (mut cdf, mut carry) = (0.0f64, 0.0f64);
         let mut k: u32 = 0;
         loop {
-            let pmf = pois.pmf(k);
-            let t = cdf + pmf;
-            carry += if cdf.abs() >= pmf {
-                (cdf - t) + pmf
-            } else {
-                (pmf - t) + cdf
-            };
-            cdf = t;
-            let w = weight(k, (cdf + carry).min(1.0));
+            let w = weight(k);
             for (x, &y) in acc.iter_mut().zip(&v) {
                 *x += w * y;
             }
@@ -1430,7 +1435,7 @@ impl MachineRepair {
                 }
                 break;
             }
-            if f64::from(k) > a && 1.0 - (cdf + carry) < 1e-12 && rest(k + 1) <= UNIFORM_TAIL {
+            if f64::from(k) >= a && rest(k + 1) <= UNIFORM_TAIL {
                 break;
             }
             self.step(&v, q, &mut next);
@@ -1456,7 +1461,7 @@ impl MachineRepair {
         let pois = poisson(a);
         Ok(self.uniformize(
             a,
-            |k, _| pois.pmf(k),
+            |k| pois.pmf(k),
             |k| if k == 0 { 1.0 } else { pois.sf(k - 1) },
         ))
     }
@@ -1473,11 +1478,26 @@ impl MachineRepair {
         let h = positive("horizon", horizon)?;
         let a = self.uniform_rate() * h;
         let pois = poisson(a);
-        Ok(self.uniformize(
-            a,
-            |_, cdf| (1.0 - cdf).max(0.0) / a,
-            |k| pois.backorders(k) / a,
-        ))
+        // P(N > k): below the mean from a compensated running cdf (no
+        // cancellation while the cdf is under about 1/2), from the mean on
+        // by the upper-tail sum.
+        let (mut cdf, mut carry) = (0.0f64, 0.0f64);
+        let mut tail = move |k: u32| {
+            if f64::from(k) < a {
+                let pmf = pois.pmf(k);
+                let t = cdf + pmf;
+                carry += if cdf >= pmf {
+                    (cdf - t) + pmf
+                } else {
+                    (pmf - t) + cdf
+                };
+                cdf = t;
+                (1.0 - (cdf + carry)).max(0.0)
+            } else {
+                pois.sf(k)
+            }
+        };
+        Ok(self.uniformize(a, |k| tail(k) / a, |k| pois.backorders(k) / a))
     }
 
     /// The share of a state distribution (or time-average) with at least
@@ -1534,6 +1554,11 @@ mod tests {
                     1e-13 * m.max(1.0),
                 );
                 close(nb.cdf(s) + nb.sf(s), 1.0, 1e-14);
+                close(
+                    nb.expected_on_hand(s),
+                    f64::from(s) - m + nb.backorders(s),
+                    1e-13 * m.max(f64::from(s)).max(1.0),
+                );
             }
         }
         assert!(NegativeBinomial::from_moments(2.0, 2.0).is_err());
@@ -1759,6 +1784,28 @@ mod tests {
         close(total, 1.0, 1e-13);
         let mean: f64 = (0..400).map(|n| f64::from(n) * q.probability(n)).sum();
         close(mean, q.mean_in_system(), 1e-12);
+    }
+
+    #[test]
+    fn short_horizons_follow_the_taylor_series() {
+        // From "all new", p_0(t) = 1 - N lambda t + N lambda (N lambda + mu)
+        // t^2 / 2 + O(t^3) (Taylor series of e^{Qt}: p_0'' = Q_00^2 +
+        // Q_01 Q_10), so the share away from state 0 at t is
+        // N lambda t (1 - (N lambda + mu) t / 2), and over [0, H] on average
+        // N lambda H / 2 (1 - (N lambda + mu) H / 3); the rest is O(t^2).
+        let mr = MachineRepair::new(4, 1, 1, 0.01, 0.1).unwrap();
+        let (nl, mu) = (0.04, 0.1);
+        for h in [1e-4, 1e-2, 1e-1] {
+            let avg = mr.time_average(h).unwrap();
+            let away: f64 = avg[1..].iter().sum();
+            let want = nl * h / 2.0 * (1.0 - (nl + mu) * h / 3.0);
+            close(away / want, 1.0, 0.01 * h * h + 1e-12);
+            let now = mr.transient(h).unwrap();
+            let away: f64 = now[1..].iter().sum();
+            let want = nl * h * (1.0 - (nl + mu) * h / 2.0);
+            close(away / want, 1.0, 0.01 * h * h + 1e-12);
+        }
+        assert_eq!(mr.transient(0.0).unwrap()[0], 1.0);
     }
 
     #[test]
