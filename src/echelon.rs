@@ -1004,9 +1004,12 @@ impl<'a> Plan<'a> {
 ///
 /// The total is convex in each site's stock but not in the depot's (the
 /// first depot spares can cut the sites' delay less than later ones), so
-/// this path can step off the lower convex hull; it is cheap (one
-/// evaluation per location per step). Use [`allocation_hull`] to seed a
-/// search.
+/// with a depot this path can step off the lower convex hull: in the
+/// two-site checks of `tests/echelon_refdata.rs`, 15 of its 90 points lie
+/// above the hull, by up to 0.05 EBO. Without a depot the problem is
+/// separable and convex and the path is on the hull. It is cheap (one
+/// evaluation per location per step); seed a search with
+/// [`allocation_hull`].
 ///
 /// # Errors
 /// When a list does not have one entry per site, a price is not finite and
@@ -1234,7 +1237,7 @@ impl MmcQueue {
         // P(N = c) = C (1 - rho).
         let at_c = self.erlang_c() * (1.0 - rho);
         if n >= c {
-            at_c * rho.powi((n - c) as i32)
+            at_c * rho.powf(f64::from(n - c))
         } else {
             // P(N = n) = P(N = c) prod_{k=n+1}^{c} k / a
             let mut p = at_c;
