@@ -7,6 +7,7 @@ pub mod analytic;
 pub mod averages;
 pub mod cli;
 pub mod dist;
+pub mod echelon;
 pub mod estimate;
 pub mod fit;
 pub mod frontier;
