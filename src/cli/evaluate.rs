@@ -130,13 +130,21 @@ pub fn render(model: &Model, j: &EvaluateJson) -> String {
         ]
     };
     if let Some(r) = &j.readiness {
-        let counts: Vec<String> = r
-            .at_least
+        // In site order (the JSON map is sorted by name).
+        let counts: Vec<String> = model
+            .sites
             .iter()
-            .map(|(k, v)| format!("{v} at {k}"))
+            .filter_map(|site| r.at_least.get(&site.name).map(|k| (site, k)))
+            .map(|(site, k)| {
+                if model.has_sites() {
+                    format!("{} at least {k} up", site.name)
+                } else {
+                    format!("at least {k} units up")
+                }
+            })
             .collect();
         s.push_str(&format!(
-            "Ready units: the target is at least {} up at once, for {} of the horizon\n",
+            "Ready units: the target is {} at once, for {} of the horizon\n",
             counts.join(", "),
             pct(r.share)
         ));
@@ -329,10 +337,14 @@ pub fn render(model: &Model, j: &EvaluateJson) -> String {
         "condemned".into(),
     ]];
     for p in &j.per_part {
+        // Sites in their order, then the depot.
         let stock = match &p.stock_at {
-            Some(at) => at
+            Some(at) => model
+                .sites
                 .iter()
-                .map(|(k, v)| format!("{k} {v}"))
+                .map(|site| site.name.as_str())
+                .chain(std::iter::once("depot"))
+                .filter_map(|k| at.get(k).map(|v| format!("{k} {v}")))
                 .collect::<Vec<_>>()
                 .join(", "),
             None => p.stock.to_string(),
