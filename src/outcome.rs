@@ -95,6 +95,9 @@ pub struct SiteOutcome {
     /// Hours with at least the site's ready count of units up (0 without a
     /// ready-units target).
     pub ready_hours: Hours,
+    /// Demand-hours waiting for a spare at the site's stores (all part
+    /// types): its backorders x hours.
+    pub backorder_hours: Hours,
     /// Hours with exactly `m` of the site's units up, `m = 0..=units`
     /// (empty unless the trial counted units up).
     pub units_up: Vec<Hours>,

@@ -83,6 +83,8 @@ pub struct SiteJson {
     pub ready_share: Option<MeanSe>,
     /// Demands at the site that found its shelf empty.
     pub stockouts: f64,
+    /// Time-average demands waiting for a spare at the site (all part types).
+    pub backorders_mean: f64,
     pub laterals_given: f64,
     pub laterals_taken: f64,
     /// Mean share of the horizon with exactly `m` of its units up, `m = 0..=units`.
@@ -382,6 +384,7 @@ fn sites(model: &Model, s: &Summary) -> Vec<SiteJson> {
                     se: m.ready_hours.se() / h,
                 }),
                 stockouts: m.stockouts.mean(),
+                backorders_mean: m.backorder_hours.mean() / h,
                 laterals_given: m.laterals_given.mean(),
                 laterals_taken: m.laterals_taken.mean(),
                 units_up: shares(&m.units_up, s.trials(), h),

@@ -928,7 +928,10 @@ impl Codec {
         if tag & T_SITES != 0 {
             put_varint(out, o.sites.len() as u64);
             for site in &o.sites {
-                put_floats(out, &[site.up_hours, site.ready_hours]);
+                put_floats(
+                    out,
+                    &[site.up_hours, site.ready_hours, site.backorder_hours],
+                );
                 for c in [site.stockouts, site.laterals_given, site.laterals_taken] {
                     put_varint(out, u64::from(c));
                 }
@@ -1073,7 +1076,7 @@ impl Codec {
                 ));
             }
             for _ in 0..n {
-                let mut f = [0.0; 2];
+                let mut f = [0.0; 3];
                 r.floats(&mut f)?;
                 let (stockouts, laterals_given, laterals_taken) =
                     (r.count()?, r.count()?, r.count()?);
@@ -1083,6 +1086,7 @@ impl Codec {
                     laterals_given,
                     laterals_taken,
                     ready_hours: f[1],
+                    backorder_hours: f[2],
                     units_up: r.hours_by_count()?,
                 });
             }
@@ -1911,6 +1915,7 @@ mod tests {
                 laterals_given: 0,
                 laterals_taken: 1,
                 ready_hours: 1000.0,
+                backorder_hours: 12.5,
                 units_up: vec![10.0, 0.0, 990.0],
             },
             crate::outcome::SiteOutcome::default(),

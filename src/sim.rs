@@ -1714,6 +1714,9 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
                 po.depot_backorder_hours += back;
             } else {
                 po.backorder_hours += back;
+                if NET && let Some(site) = self.out.sites.get_mut((store - ds) / n_parts) {
+                    site.backorder_hours += back;
+                }
             }
         }
         for (pt, po) in model.parts.iter().zip(self.out.parts.iter_mut()) {

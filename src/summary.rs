@@ -167,6 +167,7 @@ pub struct SiteMoments {
     pub laterals_given: Moments,
     pub laterals_taken: Moments,
     pub ready_hours: Moments,
+    pub backorder_hours: Moments,
     /// Sum over trials of the hours with exactly `m` units up.
     pub units_up: Vec<f64>,
 }
@@ -178,6 +179,7 @@ impl SiteMoments {
         self.laterals_given.push(s.laterals_given as f64);
         self.laterals_taken.push(s.laterals_taken as f64);
         self.ready_hours.push(s.ready_hours);
+        self.backorder_hours.push(s.backorder_hours);
         add_hours(&mut self.units_up, &s.units_up);
     }
 }

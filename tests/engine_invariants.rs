@@ -78,6 +78,13 @@ fn units_up_add_up(m: &Model, o: &wearout::outcome::TrialOutcome, ctx: &str) {
             sum += s.up_hours;
         }
         assert!(close(sum, o.up_hours), "{ctx}: sites' up hours");
+        // The sites' backorders are the part types' at the sites' stores.
+        let by_site: f64 = o.sites.iter().map(|s| s.backorder_hours).sum();
+        let by_part: f64 = o.parts.iter().map(|p| p.backorder_hours).sum();
+        assert!(
+            close(by_site, by_part),
+            "{ctx}: backorders {by_site} vs {by_part}"
+        );
     }
     assert!((0.0..=1.0).contains(&o.readiness), "{ctx}");
 }
@@ -333,6 +340,7 @@ fn the_event_loops_shortcuts_change_no_result() {
                 );
                 assert!(same_sum(x.up_hours, y.up_hours), "{ctx}");
                 assert!(same_sum(x.ready_hours, y.ready_hours), "{ctx}");
+                assert!(same_sum(x.backorder_hours, y.backorder_hours), "{ctx}");
                 for (u, v) in x.units_up.iter().zip(&y.units_up) {
                     assert!(same_sum(*u, *v), "{ctx}: {u} vs {v}");
                 }

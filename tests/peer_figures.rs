@@ -137,8 +137,8 @@ fn b2_reference_agrees_with_peer() {
     // availability, the shares of the horizon with 48, 47, 46 and 45 buses
     // up, and fleet-wide counts of the rotable and depot flows.
     let units = m.site_units();
-    let mut site_avail = vec![Moments::default(); 3];
-    let mut shares = vec![Moments::default(); 4];
+    let mut site_avail = [Moments::default(); 3];
+    let mut shares = [Moments::default(); 4];
     let mut counts = [
         ("rotable removals", Moments::default(), 271.229, 0.158),
         ("repairs started", Moments::default(), 230.073, 0.155),
