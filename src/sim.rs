@@ -1005,11 +1005,14 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
     fn hold_down(&mut self, u: usize, j: usize, now: Hours) {
         let unit = &mut self.ws.units[u];
         if UP && unit.holding_down == 0 {
-            self.ws.changes.push(Change {
-                time: now,
-                site: unit.site as u32,
-                delta: -1,
-            });
+            ready::log(
+                self.ws.changes,
+                Change {
+                    time: now,
+                    site: unit.site as u32,
+                    delta: -1,
+                },
+            );
         }
         unit.holding_down += 1;
         unit.held_sum += j;
@@ -1624,11 +1627,14 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         unit.held_sum -= j;
         unit.replacing -= 1;
         if UP && unit.holding_down == 0 {
-            self.ws.changes.push(Change {
-                time: now,
-                site: unit.site as u32,
-                delta: 1,
-            });
+            ready::log(
+                self.ws.changes,
+                Change {
+                    time: now,
+                    site: unit.site as u32,
+                    delta: 1,
+                },
+            );
         }
         self.schedule_unit(u, now);
     }

@@ -3,10 +3,11 @@
 //! every site has its ready count.
 //!
 //! Owns: the log of up and down moments and its one sweep at the end of a
-//! trial. The event loop logs a unit going down and coming up (a moment
-//! may lie ahead of the loop's clock: work that nothing can interrupt is
-//! finished within its demand's event), so the log is sorted once before
-//! the sweep. Moments at or after the horizon do not count.
+//! trial. The event loop logs a unit going down and coming up. A moment
+//! may lie ahead of the loop's clock (work that nothing can interrupt is
+//! finished within its demand's event), but never by much, so each moment
+//! is put in time order as it is logged (a few steps back at most), and
+//! the sweep needs no sort. Moments at or after the horizon do not count.
 //! May use: `dist` (hours). No randomness.
 
 use crate::dist::Hours;
@@ -17,6 +18,19 @@ pub(super) struct Change {
     pub time: Hours,
     pub site: u32,
     pub delta: i32,
+}
+
+/// Log `c`, keeping the log in time order (of equal times, in the order
+/// logged).
+#[inline]
+pub(super) fn log(changes: &mut Vec<Change>, c: Change) {
+    let mut i = changes.len();
+    changes.push(c);
+    while i > 0 && changes[i - 1].time > c.time {
+        changes[i] = changes[i - 1];
+        i -= 1;
+    }
+    changes[i] = c;
 }
 
 /// What the sweep fills in.
@@ -30,18 +44,19 @@ pub(super) struct Counts<'a> {
     pub site_ready: &'a mut [Hours],
 }
 
-/// Sweep the changes over `[0, horizon]`, every unit up at time 0.
+/// Sweep the changes (in time order, as [`log`] keeps them) over
+/// `[0, horizon]`, every unit up at time 0.
 /// `units` holds each site's unit count, `at_least` each site's ready count
 /// (or `None` without a ready-units target). Returns the hours during which
 /// every site had its ready count up (0 without a target).
 pub(super) fn sweep(
-    changes: &mut [Change],
+    changes: &[Change],
     horizon: Hours,
     units: &[u32],
     at_least: Option<&[u32]>,
     out: Counts<'_>,
 ) -> Hours {
-    changes.sort_unstable_by(|a, b| a.time.total_cmp(&b.time));
+    debug_assert!(changes.windows(2).all(|w| w[0].time <= w[1].time));
     let mut up: Vec<u32> = units.to_vec();
     let mut fleet_up: u32 = units.iter().sum();
     // Sites below their ready count.
@@ -111,19 +126,24 @@ mod tests {
         // Two sites of 2 and 1 units, horizon 10. Site 0 loses a unit over
         // [2, 5), site 1 its unit over [4, 8) (logged out of order, as the
         // loop may), and site 0 another over [9, 12) past the horizon.
-        let mut changes = vec![
+        let mut changes = Vec::new();
+        for c in [
             ch(5.0, 0, 1),
             ch(2.0, 0, -1),
             ch(4.0, 1, -1),
             ch(8.0, 1, 1),
             ch(9.0, 0, -1),
             ch(12.0, 0, 1),
-        ];
+        ] {
+            log(&mut changes, c);
+        }
+        let times: Vec<f64> = changes.iter().map(|c| c.time).collect();
+        assert_eq!(times, vec![2.0, 4.0, 5.0, 8.0, 9.0, 12.0]);
         let mut fleet = vec![0.0; 4];
         let mut sites = vec![vec![0.0; 3], vec![0.0; 2]];
         let mut site_ready = vec![0.0; 2];
         let ready = sweep(
-            &mut changes,
+            &changes,
             10.0,
             &[2, 1],
             Some(&[2, 1]),
