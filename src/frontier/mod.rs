@@ -171,6 +171,10 @@ pub enum FrontierError {
     NothingFits(f64),
     #[error("interrupted")]
     Interrupted,
+    #[error(
+        "the frontier search does not cover {0} yet; use `wearout evaluate` to cost the scenario's named policies"
+    )]
+    NotCovered(&'static str),
 }
 
 /// The options (rule x stock) of each part type.
@@ -402,6 +406,12 @@ pub fn search(
     progress: &dyn Progress,
 ) -> Result<FrontierResult, FrontierError> {
     let space = model.search.as_ref().ok_or(FrontierError::NoSearchSpace)?;
+    if model.has_sites() {
+        return Err(FrontierError::NotCovered("stock per site and at a depot"));
+    }
+    if model.ready.is_some() {
+        return Err(FrontierError::NotCovered("a ready-units target"));
+    }
     let options = Options::new(model).ok_or(FrontierError::NoSearchSpace)?;
     let measure = space.cost;
     let size = space.size();

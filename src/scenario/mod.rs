@@ -267,7 +267,17 @@ fn read_life(v: Val<'_, '_>) -> Result<Life, ScenarioError> {
             }
         }
         "gamma" => {
-            let shape = t.need("shape", "the gamma shape k", |v| v.positive())?;
+            let shape = t.need("shape", "the gamma shape k", |v| {
+                let k = v.positive()?;
+                // The survival function of an aged part costs about `k`
+                // steps; beyond this a trial could run for hours.
+                if k > 1e4 {
+                    return Err(v.error(format!(
+                        "a gamma shape of {k} is beyond what can be simulated; allowed: up to 10 000 (a spread of lives of at least 1 % of the mean)"
+                    )));
+                }
+                Ok(k)
+            })?;
             let scale = t.with("scale", |v| v.positive())?;
             let mean = t.with("mean", |v| v.positive())?;
             t.finish(&["dist", "shape", "scale", "mean"])?;
