@@ -60,40 +60,39 @@ pub(super) fn sweep(
     let mut up: Vec<u32> = units.to_vec();
     let mut fleet_up: u32 = units.iter().sum();
     // Sites below their ready count.
-    let mut short = 0usize;
-    if let Some(k) = at_least {
-        short = up.iter().zip(k).filter(|(u, k)| u < k).count();
-    }
-    let mut ready = 0.0;
-    let mut last = 0.0;
-    let mut book = |to: Hours, up: &[u32], fleet_up: u32, short: usize, out: &mut Counts<'_>| {
-        let dt = to - last;
-        if dt <= 0.0 {
-            return;
-        }
-        out.fleet[fleet_up as usize] += dt;
-        for (s, hist) in out.sites.iter_mut().enumerate() {
-            hist[up[s] as usize] += dt;
-        }
-        if let Some(k) = at_least {
-            for (s, r) in out.site_ready.iter_mut().enumerate() {
-                if up[s] >= k[s] {
-                    *r += dt;
-                }
-            }
-            if short == 0 {
-                ready += dt;
-            }
-        }
-        last = to;
+    let mut short = match at_least {
+        Some(k) => up.iter().zip(k).filter(|(u, k)| u < k).count(),
+        None => 0,
     };
-    let mut out = out;
-    for c in changes.iter() {
+    let per_site = !out.sites.is_empty();
+    let site_ready = !out.site_ready.is_empty();
+    // The fleet's books move at every change, a site's only at its own
+    // (its count stands still in between), so a change costs the same
+    // however many sites there are.
+    let (mut ready, mut last) = (0.0, 0.0);
+    let mut last_site = vec![0.0; if per_site { units.len() } else { 0 }];
+    let mut site_book = |s: usize, to: Hours, up: u32, last_site: &mut [Hours]| {
+        let dt = to - last_site[s];
+        out.sites[s][up as usize] += dt;
+        if site_ready && at_least.is_some_and(|k| up >= k[s]) {
+            out.site_ready[s] += dt;
+        }
+        last_site[s] = to;
+    };
+    for c in changes {
         if c.time >= horizon {
             break;
         }
-        book(c.time, &up, fleet_up, short, &mut out);
+        let dt = c.time - last;
+        out.fleet[fleet_up as usize] += dt;
+        if at_least.is_some() && short == 0 {
+            ready += dt;
+        }
+        last = c.time;
         let s = c.site as usize;
+        if per_site {
+            site_book(s, c.time, up[s], &mut last_site);
+        }
         let before = at_least.is_some_and(|k| up[s] < k[s]);
         if c.delta < 0 {
             up[s] -= 1;
@@ -109,7 +108,15 @@ pub(super) fn sweep(
             _ => {}
         }
     }
-    book(horizon, &up, fleet_up, short, &mut out);
+    out.fleet[fleet_up as usize] += horizon - last;
+    if at_least.is_some() && short == 0 {
+        ready += horizon - last;
+    }
+    if per_site {
+        for (s, &n) in up.iter().enumerate() {
+            site_book(s, horizon, n, &mut last_site);
+        }
+    }
     ready
 }
 
