@@ -1087,6 +1087,78 @@ mod tests {
         }
     }
 
+    /// Any observation: an exact failure, a suspension, an interval or a
+    /// left-censored failure, with or without an entry age, with a count.
+    fn observation() -> impl Strategy<Value = Obs> {
+        (
+            0..4u8,
+            hours(),
+            0.0f64..1.0,
+            0.0f64..1.0,
+            1u32..5,
+            any::<bool>(),
+        )
+            .prop_map(|(kind, t, a, e, n, entered)| {
+                let o = match kind {
+                    0 => Obs::failure(t),
+                    1 => Obs::suspension(t),
+                    2 => Obs::interval(a * t, t),
+                    _ => Obs::interval(0.0, t),
+                };
+                let entry = if entered { e * a * t } else { 0.0 };
+                o.entered_at(entry).times(f64::from(n))
+            })
+    }
+
+    fn exercise_obs(obs: Vec<Obs>) {
+        let Ok(s) = Sample::from_obs("p", obs) else {
+            return;
+        };
+        let opts = FitOptions {
+            assumed_shape: Some(1.7),
+            ..FitOptions::default()
+        };
+        match fit_part_with(&s, &opts) {
+            Ok(p) => {
+                assert_sane(&p);
+                let mut rng = TrialSeed::new(1, 2).stream(StreamKey::Parameters { part: 0 });
+                for f in p.mle.iter().chain(&p.assumed_shape) {
+                    let _ = f.sample_life(&mut rng);
+                    if f.reliable && f.method == Method::Mle {
+                        assert!(f.log_param_covariance().is_some(), "{f:?}");
+                    }
+                    assert_eq!(f.reliable, f.reliability_note.is_none(), "{f:?}");
+                }
+                if let Some(a) = &p.assumed_shape {
+                    let lb = a.assumed.as_ref().unwrap().scale_lower;
+                    assert!(lb > 0.0 && lb <= a.param("scale").unwrap() * (1.0 + 1e-9));
+                    let _ = probability_plot_svg(&s, a);
+                }
+                if let Some(w) = p.mle_of(Family::Weibull) {
+                    let _ = probability_plot_svg(&s, w);
+                    for (_, [lo, hi]) in &w.lr_ci95 {
+                        assert!(lo <= hi);
+                    }
+                }
+                let _ = report::fits_json(std::slice::from_ref(&p), &[]).unwrap();
+            }
+            Err(e) => panic!("with an assumed shape every sample fits: {e}"),
+        }
+    }
+
+    proptest! {
+        #![proptest_config(config(
+            std::env::var("FIT_PROPTEST_CASES").ok().and_then(|s| s.parse().ok()).unwrap_or(48)
+        ))]
+
+        #[test]
+        fn any_observations_give_fits_or_clear_errors(
+            obs in prop::collection::vec(observation(), 1..30),
+        ) {
+            exercise_obs(obs);
+        }
+    }
+
     proptest! {
         #![proptest_config(config(12))]
 

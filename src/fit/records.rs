@@ -648,6 +648,49 @@ mod tests {
         assert!(e.to_string().contains("before"), "{e}");
     }
 
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig {
+            cases: 256,
+            rng_seed: proptest::test_runner::RngSeed::Fixed(20_261_210),
+            failure_persistence: None,
+            ..proptest::prelude::ProptestConfig::default()
+        })]
+
+        /// Any table of the new columns, with cells from a list of the
+        /// valid and the absurd, is read or refused with the file named:
+        /// never a panic, and every record read is a usable observation.
+        #[test]
+        fn any_records_table_is_read_or_refused(
+            header in proptest::sample::subsequence(
+                vec!["part", "life", "kind", "after", "before", "entry_age", "count", "hours"], 1..8),
+            rows in proptest::collection::vec(
+                proptest::collection::vec(proptest::sample::select(vec![
+                    "", "0", "1", "-1", "12", "1200", "1e308", "nan", "2024-01-02", "1,5", "F",
+                    "S", "found", "interval", "x", "3000", "0.5", "\"a;b\"",
+                ]), 0..9),
+                0..12),
+            sep in proptest::sample::select(vec![",", ";", "\t"]),
+        ) {
+            let mut text = header.join(sep);
+            text.push_str("\r\n");
+            for r in &rows {
+                text.push_str(&r.join(sep));
+                text.push('\n');
+            }
+            match parse_records(&text, "p.csv") {
+                Ok(recs) => {
+                    for s in samples_by_part(&recs) {
+                        proptest::prop_assert!(!s.is_empty());
+                    }
+                    for r in &recs {
+                        proptest::prop_assert!(Sample::from_obs("x", vec![r.obs]).is_ok(), "{:?}", r);
+                    }
+                }
+                Err(e) => proptest::prop_assert!(e.to_string().contains("p.csv"), "{}", e),
+            }
+        }
+    }
+
     #[test]
     fn help_text_lists_every_spelling() {
         for s in FLAG_SPELLINGS

@@ -442,6 +442,56 @@ mod tests {
         parse_log(&t, m.as_ref())
     }
 
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig {
+            cases: 256,
+            rng_seed: proptest::test_runner::RngSeed::Fixed(20_261_211),
+            failure_persistence: None,
+            ..proptest::prelude::ProptestConfig::default()
+        })]
+
+        /// Any log of units, positions, readings and reasons from a list of
+        /// the valid and the absurd is turned into usable records or refused
+        /// with the file named; never a panic.
+        #[test]
+        fn any_log_is_read_or_refused(
+            rows in proptest::collection::vec(
+                (
+                    proptest::sample::select(vec!["T1", "T2", ""]),
+                    proptest::sample::select(vec!["L", "R", ""]),
+                    proptest::sample::select(vec!["0", "100", "900", "-5", "x", "1e308", ""]),
+                    proptest::sample::select(vec!["", "100", "950", "2000", "nan", "5"]),
+                    proptest::sample::select(vec!["", "failure", "planned", "PM", "worn"]),
+                ),
+                0..10,
+            ),
+            meters in proptest::sample::select(vec![
+                None,
+                Some("unit,meter\nT1,3000\nT2,1500\n"),
+                Some("unit,meter,log_start\nT1,3000,500\nT2,1500,0\n"),
+                Some("unit,meter\nT1,-1\n"),
+            ]),
+        ) {
+            let mut text = String::from("unit,position,fitted_at,removed_at,reason\n");
+            for r in &rows {
+                text.push_str(&format!("{},{},{},{},{}\n", r.0, r.1, r.2, r.3, r.4));
+            }
+            match log(&text, meters) {
+                Ok((recs, summary)) => {
+                    proptest::prop_assert_eq!(recs.len(), summary.rows);
+                    for r in &recs {
+                        let ok = crate::fit::Sample::from_obs("x", vec![r.obs]).is_ok();
+                        proptest::prop_assert!(ok, "{:?}", r);
+                    }
+                }
+                Err(e) => {
+                    let m = e.to_string();
+                    proptest::prop_assert!(m.contains("log.csv") || m.contains("meters.csv"), "{}", m);
+                }
+            }
+        }
+    }
+
     #[test]
     fn refusals_name_the_line() {
         let head = "unit,position,fitted_at,removed_at,reason\n";
