@@ -734,6 +734,13 @@ fn fit_weibull3(sample: &Sample) -> Result<Fit, FitError> {
              location's standard error and interval are rough"
                 .to_string(),
         );
+        // Smith (1985, Biometrika 72, 67-90; from memory): below shape 2 the estimates
+        // are not asymptotically normal with the usual information.
+        extra.get_or_insert_with(|| {
+            "shape below 2: the location's standard error does not follow the usual theory \
+             (non-regular likelihood), so the standard errors are rough"
+                .to_string()
+        });
     }
     // Observed information in (ln shape, ln scale, location), numerically.
     let obs = sample.obs();

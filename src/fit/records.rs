@@ -87,7 +87,7 @@ pub fn read_records(path: &Path) -> Result<Vec<Record>, FitError> {
 /// of a log's units from `meters` when given.
 ///
 /// # Errors
-/// As [`read_records`] and [`removals::parse_log`]; a meters file given
+/// As [`read_records`], and the removal-log refusals of [`removals`]; a meters file given
 /// with a records file is refused.
 pub fn read_records_or_log(
     path: &Path,

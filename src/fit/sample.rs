@@ -241,7 +241,7 @@ impl Sample {
     /// merged (see the module documentation).
     ///
     /// # Errors
-    /// [`FitError::InvalidHours`] when an observation is not usable (hours
+    /// [`FitError::InvalidObservation`] when an observation is not usable (hours
     /// not finite and positive, `after >= before`, an entry age not below
     /// the life, a count that is not a whole number from 1 to
     /// [`MAX_COUNT`]).
