@@ -37,7 +37,19 @@ use crate::dist::{Life, normal_quantile};
 /// identical and no shape is meaningful.
 const MAX_SHAPE: f64 = 1e6;
 /// Weibull shapes searched when the data hold intervals.
-const SHAPE_BOX: (f64, f64) = (1e-3, 1e4);
+const SHAPE_BOX: (f64, f64) = (1e-2, 1e4);
+/// A scale beyond this multiple of the largest age in the data means the
+/// likelihood has no maximum at finite parameters.
+const MAX_SCALE_OVER_AGE: f64 = 1e6;
+
+/// Reason given when the scale runs away.
+fn scale_runs_away(scale: f64) -> String {
+    format!(
+        "the maximum runs off to an extreme (scale {scale:.3e}, beyond a million times the \
+         longest age in the data): the likelihood has no maximum at finite parameters (typically \
+         when every failure was found at the first inspection and nothing failed later)"
+    )
+}
 /// Bounds on the gamma shape searched.
 const GAMMA_SHAPE_RANGE: (f64, f64) = (1e-3, 1e4);
 /// Bounds on the lognormal sigma searched.
@@ -432,11 +444,14 @@ fn weibull2_search(sample: &Sample) -> Result<Weibull2, String> {
         ));
     }
     if x[0] <= lo + 0.05 {
-        return Err(
-            "the shape runs to the lower edge of the search range: the data are too \
-                    spread out to fit"
-                .into(),
-        );
+        return Err(format!(
+            "the shape runs to the lower edge of the search range ({}): the likelihood keeps \
+             rising as the distribution spreads out, so it has no maximum at finite parameters",
+            SHAPE_BOX.0
+        ));
+    }
+    if x[1].exp() > MAX_SCALE_OVER_AGE * sample.largest_age() {
+        return Err(scale_runs_away(x[1].exp()));
     }
     Ok(Weibull2 {
         beta: x[0].exp(),
@@ -986,6 +1001,9 @@ fn fit_gamma(sample: &Sample) -> Result<Fit, FitError> {
             ),
         ));
     }
+    if theta > MAX_SCALE_OVER_AGE * sample.largest_age() {
+        return Err(degenerate(sample, fam, scale_runs_away(theta)));
+    }
     let cov = numeric_cov(&mut ll, &x, &[1e-4, 1e-4], vec!["ln shape", "ln scale"]);
     let sd = |i: usize| cov.as_ref().and_then(|c| c.sd(i));
     let params = vec![
@@ -1287,6 +1305,26 @@ mod tests {
         assert_eq!(w3.param("location"), Some(0.0));
         assert!(w3.notes.iter().any(|n| n.contains("boundary")));
         assert!(!w3.reliable);
+    }
+
+    #[test]
+    fn failures_only_at_the_first_inspection_have_no_maximum() {
+        // Two parts found failed at the first inspection (300 h), eight
+        // working at 2000 h: the likelihood rises towards a distribution
+        // flat between 300 and 2000 h (shape to 0, scale to infinity).
+        let s = Sample::from_obs(
+            "t",
+            vec![
+                Obs::interval(0.0, 300.0).times(2.0),
+                Obs::suspension(2000.0).times(8.0),
+            ],
+        )
+        .unwrap();
+        for fam in [Family::Weibull, Family::Gamma] {
+            let e = fit_mle(&s, fam).unwrap_err().to_string();
+            assert!(e.contains("no maximum at finite parameters"), "{e}");
+        }
+        assert!(fit_mle(&s, Family::Exponential).is_ok());
     }
 
     #[test]

@@ -103,22 +103,24 @@ pub fn data_text(p: &PartFits) -> String {
     t
 }
 
-/// Where a part's records came from, e.g. "part 'fan' of fans.csv (lines
-/// 3-72)".
+/// Where a part's records came from, e.g. "part 'fan' of fans.csv, lines
+/// 3-72" (and, for a removal log, "; a removal log, current readings from
+/// meters.csv").
 fn from_text(p: &PartFits, source: Option<&RecordsSource>) -> String {
     let mut t = format!("part '{}'", p.part);
     if let Some(s) = source {
         t.push_str(&format!(" of {}", s.file));
-        if s.log.is_some() {
-            t.push_str(" (removal log");
-            if let Some(m) = &s.meters {
-                t.push_str(&format!(", meters {m}"));
-            }
-            t.push(')');
-        }
     }
     if let Some((a, b)) = p.lines {
-        t.push_str(&format!(" (lines {a}-{b})"));
+        t.push_str(&format!(", lines {a}-{b}"));
+    }
+    if let Some(s) = source
+        && s.log.is_some()
+    {
+        t.push_str("; a removal log");
+        if let Some(m) = &s.meters {
+            t.push_str(&format!(", current readings from {m}"));
+        }
     }
     t
 }
