@@ -33,12 +33,23 @@
 //! handful of failures the region holds all but a negligible share of the
 //! normal's mass (six failures from a shape near 3 put the bound 0.05 about
 //! twelve standard errors below the estimate, on the log scale).
+//!
+//! A Weibull whose shape was assumed from experience (an assumed-shape fit
+//! with its chi-square bound, which also exists with no failure at all)
+//! draws its scale from the distribution whose quantiles are that bound:
+//! `scale = (2 T / X)^(1/shape)`, `X` chi-square with `2r + 2` degrees of
+//! freedom drawn by its quantile at one uniform, `T` the total of
+//! `t^shape` over the parts (see `fit::weibayes`). The scale's one-sided
+//! lower bound at confidence `C` is then the `1 - C` quantile of the
+//! draws, so the trials are as pessimistic as the bound; the shape stays
+//! the assumed one.
 
 use rand::Rng;
 use thiserror::Error;
 
 use crate::dist::{Hours, Life, normal_quantile, open_uniform};
-use crate::fit::{Family, Fit, LogParamCovariance, Sample};
+use crate::fit::weibayes::chi_square_quantile;
+use crate::fit::{BoundMethod, Family, Fit, LogParamCovariance, Sample};
 
 /// Smallest Weibull or gamma shape a draw may take.
 pub const MIN_SHAPE: f64 = 0.05;
@@ -83,6 +94,9 @@ enum Layout {
     Weibull3 { cap: Hours },
     /// `[ln scale]`, shape and location fixed (shape given from experience).
     WeibullScale { shape: f64, location: Hours },
+    /// Shape assumed; scale `(2 T / X)^(1/shape)` with `X` chi-square of
+    /// `dof` degrees of freedom (one uniform per draw).
+    WeibullScaleChiSquare { shape: f64, ln_total: f64, dof: f64 },
     /// `[mu, ln sigma]`.
     Lognormal,
     /// `[ln shape, ln scale]`.
@@ -135,6 +149,7 @@ impl Layout {
                 }
             }
             Layout::Weibull3 { .. } => Family::Weibull3,
+            Layout::WeibullScaleChiSquare { .. } => Family::Weibull,
             Layout::Lognormal => Family::Lognormal,
             Layout::Gamma => Family::Gamma,
             Layout::Exponential => Family::Exponential,
@@ -167,6 +182,13 @@ impl Layout {
                     return None;
                 }
                 Life::weibull3(shape, p[0].exp(), location)
+            }
+            Layout::WeibullScaleChiSquare { shape, .. } => {
+                // p[0] is ln scale, drawn in `draw_log_params`.
+                if !ln_ok(p[0]) {
+                    return None;
+                }
+                Life::weibull(shape, p[0].exp())
             }
             Layout::Lognormal => {
                 if !(p[1] <= MAX_LOG_SD.ln() && ln_ok(p[1])) {
@@ -203,7 +225,9 @@ impl Layout {
                 p[0] = p[0].clamp(MIN_SHAPE.ln(), MAX_LN);
                 p[1] = p[1].clamp(-MAX_LN, MAX_LN);
             }
-            Layout::WeibullScale { .. } | Layout::Exponential => {
+            Layout::WeibullScale { .. }
+            | Layout::WeibullScaleChiSquare { .. }
+            | Layout::Exponential => {
                 p[0] = p[0].clamp(-MAX_LN, MAX_LN);
             }
             Layout::Lognormal => p[1] = p[1].clamp(-MAX_LN, MAX_LN.min(MAX_LOG_SD.ln())),
@@ -213,7 +237,9 @@ impl Layout {
     fn len(self) -> usize {
         match self {
             Layout::Weibull3 { .. } => 3,
-            Layout::WeibullScale { .. } | Layout::Exponential => 1,
+            Layout::WeibullScale { .. }
+            | Layout::WeibullScaleChiSquare { .. }
+            | Layout::Exponential => 1,
             _ => 2,
         }
     }
@@ -239,18 +265,38 @@ pub struct LifeUncertainty {
 }
 
 impl LifeUncertainty {
-    /// From a maximum-likelihood fit and the sample it was fitted to (the
-    /// sample's smallest failure caps a drawn 3-parameter Weibull location).
+    /// From a fit and the sample it was fitted to (the smallest age by
+    /// which a failure is known to have happened caps a drawn 3-parameter
+    /// Weibull location). An assumed-shape fit with a chi-square bound
+    /// draws its scale from the bound's distribution (module
+    /// documentation).
     ///
     /// # Errors
     /// When the fit's covariance does not match its family (not produced by
     /// this crate's fits).
     pub fn from_fit(fit: &Fit, sample: &Sample) -> Result<Self, UncertaintyError> {
-        let cap = sample
-            .failures()
-            .iter()
-            .copied()
-            .fold(f64::INFINITY, f64::min);
+        let cap = sample.earliest_failure_bound().min(fit.location_cap());
+        if let Some(a) = &fit.assumed
+            && let (BoundMethod::ChiSquare { dof }, Some(ln_total)) = (a.bound, a.ln_total)
+        {
+            let point = fit.life();
+            let center = match point {
+                Life::Weibull { scale, .. } => scale.ln(),
+                _ => 0.0,
+            };
+            return Ok(LifeUncertainty {
+                point,
+                covariance: None,
+                layout: Layout::WeibullScaleChiSquare {
+                    shape: a.shape,
+                    ln_total,
+                    dof,
+                },
+                n: 1,
+                center: [center, 0.0, 0.0],
+                chol: [[0.0; 3]; 3],
+            });
+        }
         match fit.log_param_covariance() {
             Some(cov) => Self::new(fit.life(), cov.clone(), cap.is_finite().then_some(cap)),
             None => Ok(Self::fixed(fit.life())),
@@ -343,6 +389,17 @@ impl LifeUncertainty {
 
     /// One unguarded draw of the log-parameters.
     fn draw_log_params(&self, rng: &mut impl Rng) -> [f64; 3] {
+        if let Layout::WeibullScaleChiSquare {
+            shape,
+            ln_total,
+            dof,
+        } = self.layout
+        {
+            let u = open_uniform(rng);
+            let ln_scale = chi_square_quantile(u, dof)
+                .map_or(f64::NAN, |x| (2f64.ln() + ln_total - x.ln()) / shape);
+            return [ln_scale, 0.0, 0.0];
+        }
         let mut z = [0.0; 3];
         for v in z.iter_mut().take(self.n) {
             *v = normal_quantile(open_uniform(rng));

@@ -1,21 +1,65 @@
-//! The `fit` command: work-order records in; fitted life distributions,
-//! a paste-ready scenario life block and optionally a probability plot out.
+//! The `fit` command: maintenance records (or a removal log and the
+//! units' meter readings) in; fitted life distributions, a paste-ready
+//! scenario life block and optionally a probability plot out.
 //!
-//! Owns: turning [`FitArgs`] into the report on a writer and the plot
-//! file(s). Knows nothing of clap: the parent module maps its arguments
-//! onto [`FitArgs`].
-//! May use: `crate::fit`, `serde_json`, `std::io`.
+//! Owns: the command's options ([`FitCommand`], which the parent module
+//! places among the subcommands) and turning [`FitArgs`] into the report on
+//! a writer and the plot file(s).
+//! May use: `crate::fit`, `clap` (the options only), `serde_json`, `std::io`.
 
 use std::collections::HashSet;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use crate::fit::{self, Family, FitError, PartFits, PartNotFitted};
+use crate::dist::Life;
+use crate::fit::{self, Family, Fit, FitError, FitOptions, PartFits, PartNotFitted};
+
+/// The `fit` command's options, as the command line gives them.
+#[derive(Debug, Clone, clap::Args)]
+#[command(after_long_help = crate::fit::RECORDS_FORMAT_HELP)]
+pub struct FitCommand {
+    /// Records CSV (life, kind; or after, before for failures found at
+    /// inspections; optional part, entry_age, count), or a removal log
+    /// (unit, position, fitted_at, removed_at, reason): see the format
+    /// below (--help).
+    pub records: PathBuf,
+    /// Fit only this part type.
+    #[arg(long)]
+    pub part: Option<String>,
+    /// Print JSON instead of the table.
+    #[arg(long)]
+    pub json: bool,
+    /// Write a Weibull probability plot (SVG) to this file.
+    #[arg(long)]
+    pub plot: Option<PathBuf>,
+    /// The units' current meter readings, for a removal log (CSV: unit,
+    /// meter, optional log_start).
+    #[arg(long, value_name = "FILE")]
+    pub meters: Option<PathBuf>,
+    /// Assume this Weibull shape from experience and fit only the scale,
+    /// with a one-sided 95% lower bound (works with no failures): `B` for
+    /// every part, or `PART=B` for one part (repeat for several).
+    #[arg(long, value_name = "[PART=]B", allow_negative_numbers = true)]
+    pub shape: Vec<String>,
+}
+
+impl From<FitCommand> for FitArgs {
+    fn from(c: FitCommand) -> Self {
+        FitArgs {
+            records: c.records,
+            part: c.part,
+            json: c.json,
+            plot: c.plot,
+            meters: c.meters,
+            shapes: c.shape,
+        }
+    }
+}
 
 /// What to fit and how to report it.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub struct FitArgs {
-    /// The records CSV (format: [`crate::fit::RECORDS_FORMAT_HELP`]).
+    /// The records CSV or removal log (format: [`crate::fit::RECORDS_FORMAT_HELP`]).
     pub records: PathBuf,
     /// Fit only this part type (exact name, else ignoring ASCII case).
     pub part: Option<String>,
@@ -24,6 +68,74 @@ pub struct FitArgs {
     /// Write the Weibull probability plot (SVG) here. With several parts,
     /// one file per part: `<stem>-<part>.<ext>` beside it.
     pub plot: Option<PathBuf>,
+    /// The current meter readings of a removal log's units.
+    pub meters: Option<PathBuf>,
+    /// Assumed Weibull shapes as typed: `B` (every part) or `PART=B`.
+    pub shapes: Vec<String>,
+}
+
+/// The assumed shape of each part, from `--shape` values.
+#[derive(Debug, Default)]
+struct Shapes {
+    all: Option<f64>,
+    by_part: Vec<(String, f64)>,
+}
+
+impl Shapes {
+    fn parse(specs: &[String]) -> Result<Self, FitError> {
+        let mut out = Shapes::default();
+        for spec in specs {
+            let (part, num) = match spec.rsplit_once('=') {
+                Some((p, n)) => (Some(p.trim().to_string()), n.trim()),
+                None => (None, spec.trim()),
+            };
+            let b: f64 = num
+                .parse()
+                .ok()
+                .filter(|b: &f64| *b > 0.0 && *b <= 1e3)
+                .ok_or_else(|| FitError::BadOption {
+                    message: format!(
+                        "--shape '{spec}': the shape must be a number above 0 and at most 1000; \
+                         allowed: --shape 1.5 (every part) or --shape \"pump seal=1.5\" (one part)"
+                    ),
+                })?;
+            match part {
+                Some(p) if p.is_empty() => {
+                    return Err(FitError::BadOption {
+                        message: format!("--shape '{spec}': the part name before '=' is empty"),
+                    });
+                }
+                Some(p) => out.by_part.push((p, b)),
+                None => {
+                    if out.all.is_some() {
+                        return Err(FitError::BadOption {
+                            message: "--shape without a part name is given twice; give one \
+                                      shape for every part, or PART=B for each part"
+                                .to_string(),
+                        });
+                    }
+                    out.all = Some(b);
+                }
+            }
+        }
+        Ok(out)
+    }
+
+    /// The shape assumed for `part`: its own, else the one for every part.
+    fn of(&self, part: &str) -> Option<f64> {
+        self.by_part
+            .iter()
+            .rev()
+            .find(|(p, _)| p == part)
+            .or_else(|| {
+                self.by_part
+                    .iter()
+                    .rev()
+                    .find(|(p, _)| p.eq_ignore_ascii_case(part))
+            })
+            .map(|x| x.1)
+            .or(self.all)
+    }
 }
 
 fn out_err(e: std::io::Error) -> FitError {
@@ -66,21 +178,52 @@ fn plot_path_for_part(base: &Path, part: &str, used: &mut HashSet<PathBuf>) -> P
     }
 }
 
-/// Run the `fit` command: read the records, fit every part (or the one
-/// chosen), write the table and scenario block (or JSON) to `out`, and the
-/// plot file(s) atomically.
+/// The fit drawn on the probability plot: the assumed-shape Weibull when a
+/// shape was given, else the Weibull MLE, else the exponential (a Weibull
+/// of shape 1).
+fn plot_line(p: &PartFits) -> Option<&Fit> {
+    p.assumed_shape
+        .as_ref()
+        .filter(|f| matches!(f.life(), Life::Weibull { location: 0.0, .. }))
+        .or_else(|| p.mle_of(Family::Weibull))
+        .or_else(|| p.mle_of(Family::Exponential))
+}
+
+/// Run the `fit` command: read the records (or the removal log and its
+/// meter readings), fit every part (or the one chosen), write the table
+/// and scenario block (or JSON) to `out`, and the plot file(s) atomically.
 ///
 /// # Errors
 /// A [`FitError`] naming the file, line or part for bad records, an
-/// unknown part, no part with any failure, or a file that cannot be written.
+/// unknown part, no part with any failure (and no assumed shape), a bad
+/// `--shape`, or a file that cannot be written.
 pub fn run(args: &FitArgs, out: &mut dyn Write) -> Result<(), FitError> {
-    let records = fit::read_records(&args.records)?;
+    let shapes = Shapes::parse(&args.shapes)?;
+    let (records, source) = fit::read_records_or_log(&args.records, args.meters.as_deref())?;
     let samples = fit::select_parts(&records, args.part.as_deref())?;
+    for (name, _) in &shapes.by_part {
+        if !samples
+            .iter()
+            .any(|s| s.part() == name || s.part().eq_ignore_ascii_case(name))
+        {
+            let names: Vec<String> = samples.iter().map(|s| format!("'{}'", s.part())).collect();
+            return Err(FitError::BadOption {
+                message: format!(
+                    "--shape names part '{name}', which is not among the parts fitted ({})",
+                    names.join(", ")
+                ),
+            });
+        }
+    }
     let mut fitted = Vec::new();
     let mut skipped: Vec<PartNotFitted> = Vec::new();
     let mut first_error = None;
     for s in &samples {
-        match fit::fit_part(s) {
+        let options = FitOptions {
+            assumed_shape: shapes.of(s.part()),
+            ..FitOptions::default()
+        };
+        match fit::fit_part_with(s, &options) {
             Ok(p) => fitted.push((s, p)),
             Err(e) => {
                 skipped.push(PartNotFitted {
@@ -92,19 +235,22 @@ pub fn run(args: &FitArgs, out: &mut dyn Write) -> Result<(), FitError> {
         }
     }
     if fitted.is_empty() {
-        return Err(first_error.unwrap_or_else(|| FitError::NoRecords {
-            file: args.records.display().to_string(),
-        }));
+        return Err(match first_error {
+            Some(e) => FitError::InFile {
+                file: source.file.clone(),
+                message: e.to_string(),
+            },
+            None => FitError::NoRecords {
+                file: source.file.clone(),
+            },
+        });
     }
 
     let mut written = Vec::new();
     if let Some(base) = &args.plot {
         let mut used = HashSet::new();
         for (s, p) in &fitted {
-            let Some(line) = p
-                .mle_of(Family::Weibull)
-                .or_else(|| p.mle_of(Family::Exponential))
-            else {
+            let Some(line) = plot_line(p) else {
                 continue;
             };
             let svg = fit::probability_plot_svg(s, line)?;
@@ -114,27 +260,39 @@ pub fn run(args: &FitArgs, out: &mut dyn Write) -> Result<(), FitError> {
                 base.clone()
             };
             fit::write_atomic(&path, svg.as_bytes())?;
-            written.push((path, line.distribution));
+            written.push((path, line.distribution, line.method));
         }
     }
 
     let parts: Vec<PartFits> = fitted.into_iter().map(|(_, p)| p).collect();
     if args.json {
-        writeln!(out, "{}", fit::fits_json(&parts, &skipped)?).map_err(out_err)?;
+        writeln!(
+            out,
+            "{}",
+            fit::report::fits_json_with_source(&parts, &skipped, Some(&source))?
+        )
+        .map_err(out_err)?;
         return Ok(());
     }
-    write!(out, "{}", fit::table(&parts)).map_err(out_err)?;
+    if let Some(log) = &source.log {
+        writeln!(out, "{}: {}\n", source.file, log.text()).map_err(out_err)?;
+    }
+    write!(
+        out,
+        "{}",
+        fit::report::table_with_source(&parts, Some(&source))
+    )
+    .map_err(out_err)?;
     for s in &skipped {
         writeln!(out, "\nPart '{}' not fitted: {}", s.part, s.reason).map_err(out_err)?;
     }
-    for (path, family) in &written {
-        writeln!(
-            out,
-            "\nProbability plot ({} line, 95% band by the delta method): {}",
-            family.name(),
-            path.display()
-        )
-        .map_err(out_err)?;
+    for (path, family, method) in &written {
+        let what = if *method == fit::Method::AssumedShape {
+            "Weibull with assumed shape, with its one-sided lower bound".to_string()
+        } else {
+            format!("{} line, 95% band by the delta method", family.name())
+        };
+        writeln!(out, "\nProbability plot ({what}): {}", path.display()).map_err(out_err)?;
     }
     Ok(())
 }
@@ -179,6 +337,7 @@ mod tests {
             part: None,
             json: false,
             plot: Some(dir.0.join("plot.svg")),
+            ..FitArgs::default()
         };
         let mut out = Vec::new();
         run(&args, &mut out).unwrap();
@@ -203,6 +362,7 @@ mod tests {
             part: Some("FAN".into()),
             json: true,
             plot: None,
+            ..FitArgs::default()
         };
         let mut out = Vec::new();
         run(&args, &mut out).unwrap();
@@ -245,7 +405,9 @@ mod tests {
             &mut out,
         )
         .unwrap_err();
-        assert!(matches!(e, FitError::NoFailures { .. }), "{e}");
+        assert!(matches!(e, FitError::InFile { .. }), "{e}");
+        assert!(e.to_string().contains("no failures"), "{e}");
+        assert!(e.to_string().contains("records.csv"), "{e}");
         let e = run(
             &FitArgs {
                 records: dir.0.join("missing.csv"),

@@ -162,20 +162,8 @@ pub enum Command {
         #[arg(long, value_name = "DIR", num_args = 0..=1)]
         report: Option<Option<PathBuf>>,
     },
-    /// Fit life distributions to failure and suspension records (CSV).
-    Fit {
-        /// Records CSV: hours, failed/suspended flag, optional part column.
-        records: PathBuf,
-        /// Fit only this part type.
-        #[arg(long)]
-        part: Option<String>,
-        /// Print `{"fits": [...]}` JSON instead of the table.
-        #[arg(long)]
-        json: bool,
-        /// Write a Weibull probability plot (SVG) to this file.
-        #[arg(long)]
-        plot: Option<PathBuf>,
-    },
+    /// Fit life distributions to maintenance records or a removal log (CSV).
+    Fit(fit::FitCommand),
 }
 
 /// Run the command line; returns the process exit code.
@@ -277,18 +265,8 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
             };
             shards::merge(&args, out)
         }
-        Command::Fit {
-            records,
-            part,
-            json,
-            plot,
-        } => {
-            let args = fit::FitArgs {
-                records,
-                part,
-                json,
-                plot,
-            };
+        Command::Fit(command) => {
+            let args = fit::FitArgs::from(command);
             fit::run(&args, out).map_err(|e| match e {
                 crate::fit::FitError::Output { message, .. } if message.contains("Broken pipe") => {
                     UserError("broken pipe".into())

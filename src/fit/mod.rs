@@ -1,38 +1,55 @@
-//! Life-data fitting: from work-order records (hours run; failed, or
-//! suspended = right-censored) to fitted life distributions.
+//! Life-data fitting: from maintenance records (lives that ended in a
+//! failure or a suspension, failures found at inspections, parts already
+//! in service when the records began, grouped counts, or a removal log
+//! with the units' meter readings) to fitted life distributions.
 //!
-//! Owns: the records reader ([`records`]); maximum-likelihood fits with
-//! right censoring for the Weibull (2- and 3-parameter), lognormal, gamma
-//! and exponential families, with observed-information standard errors,
-//! 95% intervals, AIC/BIC ranking; Weibull median-rank regression; the
-//! result types and their JSON form; parameter-uncertainty draws for the
-//! Monte Carlo; the paste-ready scenario life block and text table
-//! ([`report`]); the Weibull probability plot ([`plot`]).
+//! Owns: the records and removal-log readers ([`records`], [`removals`]);
+//! the canonical sample ([`sample`]); maximum-likelihood fits with any mix
+//! of exact, right-, left- and interval-censored, left-truncated and
+//! counted observations for the Weibull (2- and 3-parameter), lognormal,
+//! gamma and exponential families, with observed-information standard
+//! errors, 95% intervals, likelihood-ratio intervals for the Weibull
+//! shape, scale and B-lives, AIC/BIC ranking and a reliability judgement;
+//! the Weibull with an assumed shape and its chi-square lower bound
+//! ([`weibayes`]); Weibull median-rank regression; the result types and
+//! their JSON form; parameter-uncertainty draws for the Monte Carlo; the
+//! paste-ready scenario life block and text table ([`report`]); the
+//! Weibull probability plot ([`plot`]) with the nonparametric estimate of
+//! [`turnbull`] for censored and truncated data.
 //! May use: `crate::dist` (`Life`, `normal_quantile`, `open_uniform`),
 //! `statrs` special functions, `csv`, `serde`, `plotters`, `rand` traits.
-//! Only [`plot::write_atomic`] and [`records::read_records`] touch files.
+//! Only [`plot::write_atomic`] and the readers' `read_*` functions touch files.
 //!
 //! Conventions, so the numbers can be compared with other tools:
 //! - log-likelihoods are in the data's time units and include every
-//!   constant (`ln f(t)` for failures, `ln R(t)` for suspensions);
-//! - AIC = 2k - 2 ln L; BIC = k ln n - 2 ln L with n = all records
-//!   (failures plus suspensions);
+//!   constant (`ln f(t)` for failures, `ln R(t)` for suspensions,
+//!   `ln(F(b) - F(a))` for intervals, minus `ln R(e)` for an entry age `e`);
+//! - AIC = 2k - 2 ln L; BIC = k ln n - 2 ln L with n = all parts
+//!   (failures plus suspensions, counts included);
 //! - standard errors come from the inverse observed information (the
 //!   negative Hessian of the log-likelihood at the MLE) of the
 //!   log-parameters (ln shape, ln scale, mu, ln sigma, ln mean; the
-//!   Weibull location as it is); analytic for the Weibull and exponential,
-//!   central differences otherwise; `se(p) = p * se(ln p)` (delta method);
+//!   Weibull location as it is); analytic for the Weibull without
+//!   intervals and the exponential, central differences otherwise;
+//!   `se(p) = p * se(ln p)` (delta method);
 //! - 95% intervals for positive parameters are log-Wald,
-//!   `p * exp(-/+ 1.96 se(ln p))`; `mu` and the location are Wald;
-//!   the Weibull shape also gets a likelihood-ratio interval
+//!   `p * exp(-/+ 1.96 se(ln p))`; `mu` and the location are Wald; the
+//!   Weibull shape, scale, B1 and B10 also get likelihood-ratio intervals
 //!   (`2 (ln L_max - ln L_profile) = 3.841`, chi-square with 1 d.f.).
 
+mod csvtext;
+mod lik;
+mod lr;
 mod mle;
 mod optim;
 pub mod plot;
 mod rank;
 pub mod records;
+pub mod removals;
 pub mod report;
+pub mod sample;
+pub mod turnbull;
+pub mod weibayes;
 
 use serde::Serialize;
 use serde::ser::{SerializeMap, SerializeStruct};
@@ -43,8 +60,13 @@ use crate::dist::{DistError, Life, normal_quantile, open_uniform};
 pub use mle::{fit_mle, fit_weibull_known_shape};
 pub use plot::{probability_plot_svg, write_atomic};
 pub use rank::{fit_rank_regression, median_ranks};
-pub use records::{RECORDS_FORMAT_HELP, Record, parse_records, read_records, samples_by_part};
+pub use records::RecordsSource;
+pub use records::{
+    RECORDS_FORMAT_HELP, Record, parse_records, read_records, read_records_or_log, samples_by_part,
+};
 pub use report::{fits_json, scenario_life_block, table};
+pub use sample::{Counts, Obs, Observed, Sample};
+pub use weibayes::{AssumedShape, BoundMethod, DEFAULT_CONFIDENCE, fit_assumed_shape};
 
 /// Why records could not be read or a distribution could not be fitted.
 #[derive(Debug, Error, Clone, PartialEq)]
@@ -75,12 +97,22 @@ pub enum FitError {
         candidates: String,
     },
     /// A cell that must be a number is not.
-    #[error("{file}, line {line}: '{value}' in column '{column}' is not a number of hours")]
+    #[error("{file}, line {line}: '{value}' in column '{column}' is not a number of hours{hint}")]
     BadNumber {
         file: String,
         line: u64,
         column: String,
         value: String,
+        /// What is allowed, and what the cell looks like (a date, a
+        /// thousands separator), starting with "; ".
+        hint: String,
+    },
+    /// A row that breaks a rule of the records or removal-log format.
+    #[error("{file}, line {line}: {message}")]
+    BadRow {
+        file: String,
+        line: u64,
+        message: String,
     },
     /// Hours of zero or less.
     #[error("{file}, line {line}: hours must be greater than 0 (got {value})")]
@@ -106,21 +138,30 @@ pub enum FitError {
     /// Header but no data rows.
     #[error("{file}: no records (only a header, comments or empty lines)")]
     NoRecords { file: String },
-    /// Hours handed to [`Sample::new`] that are not finite and positive.
-    #[error("part '{part}': hours must be finite numbers greater than 0 (got {value})")]
-    InvalidHours { part: String, value: f64 },
+    /// An observation handed to [`Sample::from_obs`] that is not usable.
+    #[error("part '{part}': {reason}")]
+    InvalidObservation { part: String, reason: String },
     /// A part with suspensions only.
     #[error(
-        "part '{part}': no failures among its {suspensions} records; a life distribution cannot be \
-         estimated from suspensions alone (they only show the life is longer than the hours run)"
+        "part '{part}'{}: no failures among its {suspensions} records; a life distribution cannot \
+         be estimated from suspensions alone (they only show the life is longer than the hours \
+         run). Allowed: give the Weibull shape from experience (`wearout fit --shape B`, or \
+         `assumed_shape = B` in a scenario's records life) for a lower bound on the scale",
+        lines_text(.lines)
     )]
-    NoFailures { part: String, suspensions: usize },
+    NoFailures {
+        part: String,
+        suspensions: usize,
+        /// First and last line of the part's records, when known.
+        lines: Option<(u64, u64)>,
+    },
     /// One failure and a two-parameter family.
     #[error(
         "part '{part}': only one failure ({suspensions} suspensions); a {family} fit has two \
          parameters and one failure time cannot fix both (the spread, hence the shape, is not \
          estimable and its interval is unbounded in practice). Fit the exponential (one \
-         parameter), or give the Weibull shape from experience and estimate only the scale"
+         parameter), or give the Weibull shape from experience and estimate only the scale \
+         (`wearout fit --shape B`, or `assumed_shape = B` in a scenario's records life)"
     )]
     SingleFailure {
         part: String,
@@ -155,6 +196,13 @@ pub enum FitError {
     /// The plot could not be drawn.
     #[error("cannot draw the probability plot: {message}")]
     Plot { message: String },
+    /// A part of a file that could not be fitted (the file named for the
+    /// message of a fit error).
+    #[error("{file}: {message}")]
+    InFile { file: String, message: String },
+    /// A command-line option that is not usable.
+    #[error("{message}")]
+    BadOption { message: String },
     /// Output could not be written.
     #[error("cannot write {what}: {message}")]
     Output { what: String, message: String },
@@ -163,60 +211,12 @@ pub enum FitError {
     Dist(#[from] DistError),
 }
 
-/// One part type's life data: failure hours and suspension hours.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Sample {
-    part: String,
-    failures: Vec<f64>,
-    suspensions: Vec<f64>,
-}
-
-impl Sample {
-    /// A sample from failure and suspension hours.
-    ///
-    /// # Errors
-    /// When any hours value is not finite and greater than 0.
-    pub fn new(part: &str, failures: Vec<f64>, suspensions: Vec<f64>) -> Result<Self, FitError> {
-        if let Some(&v) = failures
-            .iter()
-            .chain(&suspensions)
-            .find(|v| !(v.is_finite() && **v > 0.0))
-        {
-            return Err(FitError::InvalidHours {
-                part: part.to_string(),
-                value: v,
-            });
-        }
-        Ok(Sample {
-            part: part.to_string(),
-            failures,
-            suspensions,
-        })
-    }
-
-    /// Part type name.
-    pub fn part(&self) -> &str {
-        &self.part
-    }
-
-    /// Failure hours, in input order.
-    pub fn failures(&self) -> &[f64] {
-        &self.failures
-    }
-
-    /// Suspension hours, in input order.
-    pub fn suspensions(&self) -> &[f64] {
-        &self.suspensions
-    }
-
-    /// Number of records.
-    pub fn len(&self) -> usize {
-        self.failures.len() + self.suspensions.len()
-    }
-
-    /// True when there are no records.
-    pub fn is_empty(&self) -> bool {
-        self.len() == 0
+/// `, lines A-B` when the lines are known.
+fn lines_text(lines: &Option<(u64, u64)>) -> String {
+    match lines {
+        Some((a, b)) if a == b => format!(" (line {a})"),
+        Some((a, b)) => format!(" (lines {a}-{b})"),
+        None => String::new(),
     }
 }
 
@@ -271,20 +271,60 @@ impl Family {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
 #[serde(rename_all = "snake_case")]
 pub enum Method {
-    /// Maximum likelihood with right censoring.
+    /// Maximum likelihood (any censoring, truncation, counts).
     Mle,
     /// Median-rank regression (Benard's approximation, Johnson's adjusted
     /// ranks), least squares of ln hours on ln(-ln(1 - F)).
     RankRegression,
+    /// Weibull with the shape assumed from experience: the scale and its
+    /// one-sided lower bound ([`weibayes`]).
+    AssumedShape,
 }
 
 impl Method {
-    /// `mle` or `rank_regression`.
+    /// `mle`, `rank_regression` or `assumed_shape`.
     pub fn name(self) -> &'static str {
         match self {
             Method::Mle => "mle",
             Method::RankRegression => "rank_regression",
+            Method::AssumedShape => "assumed_shape",
         }
+    }
+}
+
+/// A B-life: the age by which a fraction `p` of the parts has failed.
+#[derive(Debug, Clone, PartialEq)]
+pub struct BLife {
+    /// `B1`, `B10`.
+    pub name: &'static str,
+    /// Fraction failed (0.01, 0.10).
+    pub p: f64,
+    /// Point estimate, hours.
+    pub value: f64,
+    /// 95% log-Wald interval (delta method on ln B_p).
+    pub ci95: Option<[f64; 2]>,
+    /// 95% likelihood-ratio interval.
+    pub lr_ci95: Option<[f64; 2]>,
+    /// One-sided lower bound (assumed-shape fits), at the fit's confidence.
+    pub lower_bound: Option<f64>,
+}
+
+impl Serialize for BLife {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let mut m = s.serialize_map(None)?;
+        m.serialize_entry("name", self.name)?;
+        m.serialize_entry("p", &self.p)?;
+        m.serialize_entry("value", &self.value)?;
+        if let Some(c) = self.ci95 {
+            m.serialize_entry("ci95", &c)?;
+        }
+        if let Some(c) = self.lr_ci95 {
+            m.serialize_entry("lr_ci95", &c)?;
+        }
+        if let Some(b) = self.lower_bound {
+            m.serialize_entry("lower_bound", &b)?;
+        }
+        m.end()
     }
 }
 
@@ -359,8 +399,10 @@ pub struct Fit {
     pub method: Method,
     /// Parameters in the order shape, scale, location / mu, sigma / rate, mean.
     pub params: Vec<Estimate>,
-    /// Likelihood-ratio 95% intervals (the Weibull shape).
+    /// Likelihood-ratio 95% intervals (the Weibull shape, scale, B1, B10).
     pub lr_ci95: Vec<(&'static str, [f64; 2])>,
+    /// B-lives (2-parameter Weibull and assumed-shape fits).
+    pub b_lives: Vec<BLife>,
     /// Log-likelihood at the estimates (for rank regression: evaluated at
     /// the regression estimates).
     pub loglik: f64,
@@ -368,19 +410,29 @@ pub struct Fit {
     pub aic: f64,
     /// Bayesian information criterion.
     pub bic: f64,
-    /// Number of failures used.
+    /// Number of failures used (exact, in an interval, left-censored).
     pub failures: usize,
     /// Number of suspensions used.
     pub suspensions: usize,
+    /// What the data held, kind by kind.
+    pub counts: Counts,
     /// Position in the part's AIC ranking of MLE fits (1 = best).
     pub aic_rank: Option<usize>,
     /// Coefficient of determination of the regression (rank regression only).
     pub r_squared: Option<f64>,
+    /// Whether the likelihood has a proper maximum with standard errors
+    /// that can be trusted (false for rank regression, a boundary or local
+    /// maximum, no or huge standard errors, as many parameters as failures).
+    pub reliable: bool,
+    /// Why the fit is not reliable.
+    pub reliability_note: Option<String>,
     /// Anything the reader must know (boundary estimates, fixed shape, ...).
     pub notes: Vec<String>,
+    /// What an assumed-shape fit rests on.
+    pub assumed: Option<AssumedShape>,
     life: Life,
     log_cov: Option<LogParamCovariance>,
-    /// Largest location a draw may take (the smallest failure), weibull3 only.
+    /// Largest location a draw may take (the smallest failure bound), weibull3 only.
     location_cap: f64,
 }
 
@@ -422,13 +474,31 @@ impl Fit {
         self.log_cov.as_ref()
     }
 
-    /// A distribution whose parameters are drawn from the asymptotic normal
-    /// sampling distribution of the log-parameters, so that a Monte Carlo
-    /// trial carries the estimation uncertainty. A drawn Weibull location is
-    /// clamped to `[0, smallest failure]`. Without a covariance (rank
-    /// regression, boundary fits without information) the point estimate is
-    /// returned; so is it when a draw is not a valid distribution (overflow).
+    /// Largest location a drawn 3-parameter Weibull may take: the
+    /// smallest age by which a failure is known to have happened.
+    pub fn location_cap(&self) -> f64 {
+        self.location_cap
+    }
+
+    /// A distribution whose parameters are drawn from the fit's sampling
+    /// distribution, so that a Monte Carlo trial carries the estimation
+    /// uncertainty: the asymptotic normal of the log-parameters, or for an
+    /// assumed-shape fit with a chi-square bound the distribution whose
+    /// quantiles are that bound. A drawn Weibull location is clamped to
+    /// `[0, smallest failure bound]`. Without a covariance (rank
+    /// regression, boundary fits without information) the point estimate
+    /// is returned; so is it when a draw is not a valid distribution
+    /// (overflow).
     pub fn sample_life(&self, rng: &mut impl rand::Rng) -> Life {
+        if let Some(a) = &self.assumed
+            && let BoundMethod::ChiSquare { .. } = a.bound
+        {
+            let u = open_uniform(rng);
+            return a
+                .draw_scale(u)
+                .and_then(|eta| Life::weibull(a.shape, eta).ok())
+                .unwrap_or(self.life);
+        }
         let Some(cov) = &self.log_cov else {
             return self.life;
         };
@@ -472,7 +542,7 @@ impl<T: Serialize> Serialize for Ordered<'_, T> {
 
 impl Serialize for Fit {
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        let mut st = s.serialize_struct("Fit", 16)?;
+        let mut st = s.serialize_struct("Fit", 20)?;
         st.serialize_field("part", &self.part)?;
         st.serialize_field("distribution", &self.distribution)?;
         st.serialize_field("method", &self.method)?;
@@ -506,16 +576,60 @@ impl Serialize for Fit {
         st.serialize_field("bic", &self.bic)?;
         st.serialize_field("failures", &self.failures)?;
         st.serialize_field("suspensions", &self.suspensions)?;
+        st.serialize_field(
+            "data",
+            &Ordered(vec![
+                ("exact_failures", self.counts.exact_failures),
+                ("interval_failures", self.counts.interval_failures),
+                ("left_censored", self.counts.left_censored),
+                ("suspensions", self.counts.suspensions),
+                ("entry_ages", self.counts.truncated),
+            ]),
+        )?;
         if let Some(r) = self.aic_rank {
             st.serialize_field("aic_rank", &r)?;
         }
         if let Some(r2) = self.r_squared {
             st.serialize_field("r_squared", &r2)?;
         }
+        if !self.b_lives.is_empty() {
+            st.serialize_field("b_lives", &self.b_lives)?;
+        }
+        if let Some(a) = &self.assumed {
+            st.serialize_field("assumed_shape", &AssumedJson(a))?;
+        }
+        st.serialize_field("reliable", &self.reliable)?;
+        if let Some(n) = &self.reliability_note {
+            st.serialize_field("reliability_note", n)?;
+        }
         if !self.notes.is_empty() {
             st.serialize_field("notes", &self.notes)?;
         }
         st.end()
+    }
+}
+
+/// The JSON form of an [`AssumedShape`].
+struct AssumedJson<'a>(&'a AssumedShape);
+
+impl Serialize for AssumedJson<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let a = self.0;
+        let mut m = s.serialize_map(None)?;
+        m.serialize_entry("shape", &a.shape)?;
+        m.serialize_entry("confidence", &a.confidence)?;
+        m.serialize_entry("failures", &a.failures)?;
+        m.serialize_entry("scale_lower_bound", &a.scale_lower)?;
+        match a.bound {
+            BoundMethod::ChiSquare { dof } => {
+                m.serialize_entry("bound_method", "chi_square")?;
+                m.serialize_entry("chi_square_dof", &dof)?;
+            }
+            BoundMethod::LikelihoodRatio => {
+                m.serialize_entry("bound_method", "likelihood_ratio")?;
+            }
+        }
+        m.end()
     }
 }
 
@@ -546,14 +660,20 @@ pub struct PartNotFitted {
 pub struct PartFits {
     /// Part type.
     pub part: String,
-    /// Number of failures.
+    /// Number of failures (exact, in an interval, left-censored).
     pub failures: usize,
     /// Number of suspensions.
     pub suspensions: usize,
+    /// What the data held, kind by kind.
+    pub counts: Counts,
+    /// First and last line of the part's records, when known.
+    pub lines: Option<(u64, u64)>,
     /// MLE fits, best (lowest AIC) first.
     pub mle: Vec<Fit>,
     /// The Weibull median-rank regression, for comparison.
     pub rank_regression: Option<Fit>,
+    /// The Weibull with the assumed shape, when a shape was given.
+    pub assumed_shape: Option<Fit>,
     /// Fits that could not be made.
     pub not_fitted: Vec<NotFitted>,
 }
@@ -568,6 +688,71 @@ impl PartFits {
     pub fn mle_of(&self, family: Family) -> Option<&Fit> {
         self.mle.iter().find(|f| f.distribution == family)
     }
+
+    /// The fit to use (the one pasted into a scenario) and why: the
+    /// assumed-shape fit when a shape was given, else the lowest AIC.
+    pub fn chosen(&self) -> Option<(&Fit, String)> {
+        if let Some(a) = &self.assumed_shape {
+            let shape = a.param("shape").unwrap_or(f64::NAN);
+            let why = if self.failures < 2 {
+                format!(
+                    "fewer than two failures, so the shape cannot be estimated: the Weibull with \
+                     the assumed shape {} is used",
+                    report::fmt_sig(shape)
+                )
+            } else {
+                let mle = self
+                    .mle_of(Family::Weibull)
+                    .map(|w| {
+                        let ci = w
+                            .lr_ci95("shape")
+                            .or(w.ci95("shape"))
+                            .map(|c| {
+                                format!(" [{}, {}]", report::fmt_sig(c[0]), report::fmt_sig(c[1]))
+                            })
+                            .unwrap_or_default();
+                        format!(
+                            "; these data alone give shape {}{ci}",
+                            report::fmt_sig(w.param("shape").unwrap_or(f64::NAN))
+                        )
+                    })
+                    .unwrap_or_default();
+                format!(
+                    "the Weibull with the assumed shape {}, as asked{mle}",
+                    report::fmt_sig(shape)
+                )
+            };
+            return Some((a, why));
+        }
+        self.best().map(|b| {
+            (
+                b,
+                format!(
+                    "{} by maximum likelihood, lowest AIC",
+                    b.distribution.name()
+                ),
+            )
+        })
+    }
+}
+
+/// Choices for [`fit_part_with`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FitOptions {
+    /// The Weibull shape assumed from experience: adds (and chooses) the
+    /// assumed-shape fit, which also works without failures.
+    pub assumed_shape: Option<f64>,
+    /// Confidence of the assumed-shape fit's one-sided lower bounds.
+    pub confidence: f64,
+}
+
+impl Default for FitOptions {
+    fn default() -> Self {
+        FitOptions {
+            assumed_shape: None,
+            confidence: DEFAULT_CONFIDENCE,
+        }
+    }
 }
 
 /// Fit every family by MLE, rank them by AIC, and add the Weibull
@@ -577,47 +762,83 @@ impl PartFits {
 /// Only when the part has no failures; any other failure to fit one
 /// family is listed in [`PartFits::not_fitted`].
 pub fn fit_part(sample: &Sample) -> Result<PartFits, FitError> {
-    if sample.failures().is_empty() {
+    fit_part_with(sample, &FitOptions::default())
+}
+
+/// [`fit_part`] with choices: with an assumed shape, also the Weibull of
+/// that shape (which works with no failures at all, and is then the only
+/// fit).
+///
+/// # Errors
+/// When the part has no failures and no shape is assumed; any other
+/// failure to fit one family is listed in [`PartFits::not_fitted`].
+pub fn fit_part_with(sample: &Sample, options: &FitOptions) -> Result<PartFits, FitError> {
+    let r = sample.failure_count();
+    if r == 0 && options.assumed_shape.is_none() {
         return Err(FitError::NoFailures {
             part: sample.part().to_string(),
-            suspensions: sample.suspensions().len(),
+            suspensions: sample.suspension_count(),
+            lines: sample.lines(),
         });
     }
+    let not = |distribution, method, reason: String| NotFitted {
+        part: sample.part().to_string(),
+        distribution,
+        method,
+        reason,
+    };
     let mut mle = Vec::new();
     let mut not_fitted = Vec::new();
     for family in Family::ALL {
+        if r == 0 {
+            not_fitted.push(not(
+                family,
+                Method::Mle,
+                "no failures: nothing to estimate by maximum likelihood (the assumed-shape fit \
+                 is used)"
+                    .to_string(),
+            ));
+            continue;
+        }
         match fit_mle(sample, family) {
             Ok(f) => mle.push(f),
-            Err(e) => not_fitted.push(NotFitted {
-                part: sample.part().to_string(),
-                distribution: family,
-                method: Method::Mle,
-                reason: e.to_string(),
-            }),
+            Err(e) => not_fitted.push(not(family, Method::Mle, e.to_string())),
         }
     }
     mle.sort_by(|a, b| a.aic.total_cmp(&b.aic));
     for (i, f) in mle.iter_mut().enumerate() {
         f.aic_rank = Some(i + 1);
     }
-    let rank_regression = match fit_rank_regression(sample) {
-        Ok(f) => Some(f),
-        Err(e) => {
-            not_fitted.push(NotFitted {
-                part: sample.part().to_string(),
-                distribution: Family::Weibull,
-                method: Method::RankRegression,
-                reason: e.to_string(),
-            });
-            None
+    let rank_regression = if r == 0 {
+        None
+    } else {
+        match fit_rank_regression(sample) {
+            Ok(f) => Some(f),
+            Err(e) => {
+                not_fitted.push(not(Family::Weibull, Method::RankRegression, e.to_string()));
+                None
+            }
         }
+    };
+    let assumed_shape = match options.assumed_shape {
+        None => None,
+        Some(b) => match fit_assumed_shape(sample, b, options.confidence) {
+            Ok(f) => Some(f),
+            Err(e) => {
+                not_fitted.push(not(Family::Weibull, Method::AssumedShape, e.to_string()));
+                None
+            }
+        },
     };
     Ok(PartFits {
         part: sample.part().to_string(),
-        failures: sample.failures().len(),
-        suspensions: sample.suspensions().len(),
+        failures: r,
+        suspensions: sample.suspension_count(),
+        counts: sample.counts(),
+        lines: sample.lines(),
         mle,
         rank_regression,
+        assumed_shape,
         not_fitted,
     })
 }
@@ -863,6 +1084,78 @@ mod tests {
             s in prop::collection::vec(hours(), 0..120),
         ) {
             exercise(&Sample::new("p", f, s).unwrap());
+        }
+    }
+
+    /// Any observation: an exact failure, a suspension, an interval or a
+    /// left-censored failure, with or without an entry age, with a count.
+    fn observation() -> impl Strategy<Value = Obs> {
+        (
+            0..4u8,
+            hours(),
+            0.0f64..1.0,
+            0.0f64..1.0,
+            1u32..5,
+            any::<bool>(),
+        )
+            .prop_map(|(kind, t, a, e, n, entered)| {
+                let o = match kind {
+                    0 => Obs::failure(t),
+                    1 => Obs::suspension(t),
+                    2 => Obs::interval(a * t, t),
+                    _ => Obs::interval(0.0, t),
+                };
+                let entry = if entered { e * a * t } else { 0.0 };
+                o.entered_at(entry).times(f64::from(n))
+            })
+    }
+
+    fn exercise_obs(obs: Vec<Obs>) {
+        let Ok(s) = Sample::from_obs("p", obs) else {
+            return;
+        };
+        let opts = FitOptions {
+            assumed_shape: Some(1.7),
+            ..FitOptions::default()
+        };
+        match fit_part_with(&s, &opts) {
+            Ok(p) => {
+                assert_sane(&p);
+                let mut rng = TrialSeed::new(1, 2).stream(StreamKey::Parameters { part: 0 });
+                for f in p.mle.iter().chain(&p.assumed_shape) {
+                    let _ = f.sample_life(&mut rng);
+                    if f.reliable && f.method == Method::Mle {
+                        assert!(f.log_param_covariance().is_some(), "{f:?}");
+                    }
+                    assert_eq!(f.reliable, f.reliability_note.is_none(), "{f:?}");
+                }
+                if let Some(a) = &p.assumed_shape {
+                    let lb = a.assumed.as_ref().unwrap().scale_lower;
+                    assert!(lb > 0.0 && lb <= a.param("scale").unwrap() * (1.0 + 1e-9));
+                    let _ = probability_plot_svg(&s, a);
+                }
+                if let Some(w) = p.mle_of(Family::Weibull) {
+                    let _ = probability_plot_svg(&s, w);
+                    for (_, [lo, hi]) in &w.lr_ci95 {
+                        assert!(lo <= hi);
+                    }
+                }
+                let _ = report::fits_json(std::slice::from_ref(&p), &[]).unwrap();
+            }
+            Err(e) => panic!("with an assumed shape every sample fits: {e}"),
+        }
+    }
+
+    proptest! {
+        #![proptest_config(config(
+            std::env::var("FIT_PROPTEST_CASES").ok().and_then(|s| s.parse().ok()).unwrap_or(48)
+        ))]
+
+        #[test]
+        fn any_observations_give_fits_or_clear_errors(
+            obs in prop::collection::vec(observation(), 1..30),
+        ) {
+            exercise_obs(obs);
         }
     }
 

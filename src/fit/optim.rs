@@ -126,6 +126,157 @@ pub(crate) fn golden_max(f: &mut dyn FnMut(f64) -> f64, mut a: f64, mut b: f64) 
     if f1 >= f2 { (x1, f1) } else { (x2, f2) }
 }
 
+/// Brent's minimisation without derivatives (Brent 1973, ch. 5: golden
+/// section with parabolic steps) of `-f` on `[a, b]`, that is the maximum
+/// of `f`, to a relative tolerance `tol` in `x`. Non-finite values count as
+/// minus infinity. Returns `(x, f(x))`.
+pub(crate) fn brent_max(
+    f: &mut dyn FnMut(f64) -> f64,
+    mut a: f64,
+    mut b: f64,
+    tol: f64,
+) -> (f64, f64) {
+    let mut g = |x: f64| {
+        let v = f(x);
+        if v.is_finite() { -v } else { f64::INFINITY }
+    };
+    let c = 0.5 * (3.0 - 5f64.sqrt());
+    let mut x = a + c * (b - a);
+    let (mut w, mut v) = (x, x);
+    let mut fx = g(x);
+    let (mut fw, mut fv) = (fx, fx);
+    let (mut d, mut e): (f64, f64) = (0.0, 0.0);
+    for _ in 0..500 {
+        let m = 0.5 * (a + b);
+        let tol1 = tol * x.abs() + 1e-14;
+        let tol2 = 2.0 * tol1;
+        if (x - m).abs() <= tol2 - 0.5 * (b - a) {
+            break;
+        }
+        let mut golden = true;
+        if e.abs() > tol1 && fx.is_finite() && fw.is_finite() && fv.is_finite() {
+            let r = (x - w) * (fx - fv);
+            let mut q = (x - v) * (fx - fw);
+            let mut p = (x - v) * q - (x - w) * r;
+            q = 2.0 * (q - r);
+            if q > 0.0 {
+                p = -p;
+            } else {
+                q = -q;
+            }
+            if p.abs() < (0.5 * q * e).abs() && p > q * (a - x) && p < q * (b - x) {
+                e = d;
+                d = p / q;
+                let u = x + d;
+                if u - a < tol2 || b - u < tol2 {
+                    d = tol1.copysign(m - x);
+                }
+                golden = false;
+            }
+        }
+        if golden {
+            e = if x < m { b - x } else { a - x };
+            d = c * e;
+        }
+        let u = if d.abs() >= tol1 {
+            x + d
+        } else {
+            x + tol1.copysign(d)
+        };
+        let fu = g(u);
+        if fu <= fx {
+            if u < x {
+                b = x;
+            } else {
+                a = x;
+            }
+            v = w;
+            fv = fw;
+            w = x;
+            fw = fx;
+            x = u;
+            fx = fu;
+        } else {
+            if u < x {
+                a = u;
+            } else {
+                b = u;
+            }
+            if fu <= fw || w == x {
+                v = w;
+                fv = fw;
+                w = u;
+                fw = fu;
+            } else if fu <= fv || v == x || v == w {
+                v = u;
+                fv = fu;
+            }
+        }
+    }
+    (x, -fx)
+}
+
+/// The maximum of `f` near `x0`: steps of `step` (doubling) uphill until
+/// `f` falls again, at most to `[lo, hi]`, then [`brent_max`] on the
+/// bracket. Returns `Ok((x, f(x)))`; `Err(Some(..))` when `f` keeps rising
+/// to `lo` or `hi` (the point reached), `Err(None)` when `f(x0)` is not
+/// finite.
+pub(crate) fn max_1d(
+    f: &mut dyn FnMut(f64) -> f64,
+    x0: f64,
+    step: f64,
+    lo: f64,
+    hi: f64,
+    tol: f64,
+) -> Result<(f64, f64), Option<(f64, f64)>> {
+    let mut m = x0.clamp(lo, hi);
+    let mut fm = f(m);
+    if !fm.is_finite() {
+        return Err(None);
+    }
+    let mut s = step;
+    let mut r = (m + s).min(hi);
+    let mut fr = f(r);
+    let (a, b);
+    if fr > fm {
+        let mut l;
+        loop {
+            l = m;
+            m = r;
+            fm = fr;
+            if m >= hi {
+                return Err(Some((m, fm)));
+            }
+            s *= 2.0;
+            r = (m + s).min(hi);
+            fr = f(r);
+            if fr.is_nan() || fr <= fm {
+                break;
+            }
+        }
+        (a, b) = (l, r);
+    } else {
+        let hi_end = r;
+        let mut rr = hi_end;
+        let mut l = (m - s).max(lo);
+        let mut fl = f(l);
+        while fl > fm {
+            rr = m;
+            m = l;
+            fm = fl;
+            if m <= lo {
+                return Err(Some((m, fm)));
+            }
+            s *= 2.0;
+            l = (m - s).max(lo);
+            fl = f(l);
+        }
+        (a, b) = (l, rr);
+    }
+    let (x, fx) = brent_max(f, a, b, tol);
+    Ok(if fx >= fm { (x, fx) } else { (m, fm) })
+}
+
 /// Nelder–Mead simplex minimisation (Nelder & Mead 1965, with the standard
 /// coefficients 1, 2, 1/2, 1/2), restarted once from its result to avoid
 /// a collapsed simplex. Stops when the values across the simplex agree to
@@ -414,6 +565,26 @@ mod tests {
         let (x, v) = nelder_mead(&mut f, &[-1.2, 1.0], &[0.5, 0.5], 5000, 1e-13);
         assert!(v < 1e-10, "{v}");
         assert!((x[0] - 1.0).abs() < 1e-4 && (x[1] - 1.0).abs() < 1e-4);
+    }
+
+    #[test]
+    fn one_dimensional_maxima() {
+        let (x, v) = brent_max(&mut |x| -(x - 0.3) * (x - 0.3) + 2.0, -1.0, 1.0, 1e-10);
+        assert!((x - 0.3).abs() < 1e-8 && (v - 2.0).abs() < 1e-14, "{x} {v}");
+        // Far from the start, bracketed by doubling steps.
+        let (x, _) = max_1d(&mut |x| -(x - 37.0).powi(2), 0.0, 0.5, -1e3, 1e3, 1e-12).unwrap();
+        assert!((x - 37.0).abs() < 1e-8, "{x}");
+        let (x, _) = max_1d(&mut |x| -(x + 5.0).powi(2), 0.0, 0.5, -1e3, 1e3, 1e-12).unwrap();
+        assert!((x + 5.0).abs() < 1e-8, "{x}");
+        // Rising to the limit.
+        assert_eq!(
+            max_1d(&mut |x| x, 0.0, 1.0, -10.0, 10.0, 1e-9),
+            Err(Some((10.0, 10.0)))
+        );
+        assert_eq!(
+            max_1d(&mut |_| f64::NAN, 0.0, 1.0, -1.0, 1.0, 1e-9),
+            Err(None)
+        );
     }
 
     #[test]

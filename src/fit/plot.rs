@@ -1,9 +1,13 @@
 //! The Weibull probability plot (SVG) and atomic file writing.
 //!
 //! Owns: Weibull probability paper (y = ln(-ln(1 - F)) against ln hours,
-//! labelled in hours and unreliability %), the data's median ranks, the
-//! fitted line and its 95% confidence band, and writing files atomically.
-//! May use: `plotters` (SVG backend), `super::rank`, `std::fs`.
+//! labelled in hours and unreliability %), the data's plotting positions
+//! (median ranks, or Turnbull's estimate for inspection intervals and
+//! entry ages, with failures found at inspections drawn as bars across
+//! their span), the fitted line and its 95% confidence band (or an
+//! assumed-shape fit's lower bound), and writing files atomically.
+//! May use: `plotters` (SVG backend), `super::rank`, `super::turnbull`,
+//! `std::fs`.
 //!
 //! The band is pointwise, by the delta method on the log-quantile:
 //! `ln t_p = ln scale + w_p / shape` with `w_p = ln(-ln(1 - p))`, its
@@ -19,6 +23,7 @@ use plotters::prelude::*;
 
 use super::mle::z95;
 use super::rank::median_ranks;
+use super::turnbull;
 use super::{Family, Fit, FitError, Sample};
 use crate::dist::Life;
 
@@ -26,6 +31,7 @@ const INK: RGBColor = RGBColor(0x2e, 0x2e, 0x2e);
 const LINE: RGBColor = RGBColor(0x3a, 0x6b, 0x7e);
 const GRID_BOLD: RGBColor = RGBColor(0xc4, 0xc4, 0xc4);
 const GRID_LIGHT: RGBColor = RGBColor(0xe6, 0xe6, 0xe6);
+const SPAN: RGBColor = RGBColor(0xb3, 0x5c, 0x1e);
 
 /// Unreliability ticks, as fractions.
 const F_TICKS: [f64; 16] = [
@@ -229,10 +235,62 @@ fn nice_ceil(v: f64) -> f64 {
         .unwrap_or(10.0 * k)
 }
 
+/// What the plot shows of the data: points at a plotting position, and
+/// spans for failures known only within an inspection interval.
+struct DataMarks {
+    /// (hours, unreliability) of failures at a known age.
+    points: Vec<(f64, f64)>,
+    /// (from, to, unreliability) of failures within an interval.
+    spans: Vec<(f64, f64, f64)>,
+    /// Legend text of the points.
+    points_label: &'static str,
+}
+
+fn data_marks(sample: &Sample) -> DataMarks {
+    if sample.is_plain() {
+        let mut points = median_ranks(sample);
+        // Thousands of failures: one mark per distinct plotting position
+        // is plenty.
+        if points.len() > 2000 {
+            let k = points.len().div_ceil(2000);
+            points = points.into_iter().step_by(k).collect();
+        }
+        return DataMarks {
+            points,
+            spans: Vec::new(),
+            points_label: "failures at median ranks (Benard; Johnson-adjusted for suspensions)",
+        };
+    }
+    let steps = turnbull::estimate(sample.obs(), 3000);
+    let mut points = Vec::new();
+    let mut spans = Vec::new();
+    for st in steps {
+        let f = st.position();
+        if !(f > 0.0 && f < 1.0) {
+            continue;
+        }
+        if st.is_span() {
+            spans.push((st.from, st.to, f));
+        } else {
+            points.push((st.from, f));
+        }
+    }
+    DataMarks {
+        points,
+        spans,
+        points_label: "failures: nonparametric (Turnbull) estimate, middle of each step",
+    }
+}
+
 /// The Weibull probability plot as an SVG document: the failures at their
-/// Johnson-adjusted Benard median ranks, the fitted line of `line` (a
-/// 2-parameter Weibull or exponential fit, which is a Weibull of shape 1)
-/// and its pointwise 95% band (delta method on the log-quantile).
+/// plotting positions (Johnson-adjusted Benard median ranks for exact
+/// failures and suspensions; otherwise the middle of each step of
+/// Turnbull's nonparametric estimate, with a failure known only within an
+/// inspection interval drawn as a bar across the span the estimate places
+/// it in, marked by a square), the fitted line of `line` (a 2-parameter
+/// Weibull, an exponential, which is a Weibull of shape 1, or a Weibull
+/// with an assumed shape) and its pointwise 95% band (delta method on the
+/// log-quantile), or for an assumed-shape fit its one-sided lower bound.
 ///
 /// # Errors
 /// [`FitError::Plot`] when `line` is not a Weibull (location 0) or
@@ -257,17 +315,48 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
         scale,
         fit: line,
     };
-    let pts = median_ranks(sample);
-    if pts.is_empty() {
-        return Err(plot_err(format!(
-            "part '{}' has no failures to plot",
-            sample.part()
-        )));
+    let marks = data_marks(sample);
+    let lower_scale = line.assumed.as_ref().map(|a| a.scale_lower);
+    let all_p = marks
+        .points
+        .iter()
+        .map(|p| p.1)
+        .chain(marks.spans.iter().map(|s| s.2));
+    let (mut p_min, mut p_max) = (f64::INFINITY, f64::NEG_INFINITY);
+    for p in all_p {
+        p_min = p_min.min(p);
+        p_max = p_max.max(p);
     }
-    let p_min = pts.iter().map(|p| p.1).fold(f64::INFINITY, f64::min);
-    let p_max = pts.iter().map(|p| p.1).fold(f64::NEG_INFINITY, f64::max);
-    let t_min = pts.iter().map(|p| p.0).fold(f64::INFINITY, f64::min);
-    let t_max = pts.iter().map(|p| p.0).fold(f64::NEG_INFINITY, f64::max);
+    let all_t = marks
+        .points
+        .iter()
+        .map(|p| p.0)
+        // A span from 0 (found failed at the first inspection) is drawn
+        // from the left edge; the axis need not reach 0 for it.
+        .chain(
+            marks
+                .spans
+                .iter()
+                .flat_map(|s| [if s.0 > 0.0 { s.0 } else { s.1 / 10.0 }, s.1]),
+        );
+    let (mut t_min, mut t_max) = (f64::INFINITY, f64::NEG_INFINITY);
+    for t in all_t {
+        t_min = t_min.min(t);
+        t_max = t_max.max(t);
+    }
+    if !p_min.is_finite() {
+        if lower_scale.is_none() {
+            return Err(plot_err(format!(
+                "part '{}' has no failures to plot",
+                sample.part()
+            )));
+        }
+        // No failures (an assumed-shape fit): frame the line itself.
+        p_min = 0.01;
+        p_max = 0.9;
+        t_min = wl.ln_quantile(0.01).exp();
+        t_max = wl.ln_quantile(0.9).exp();
+    }
     let f_lo = (0.5 * p_min).clamp(1e-4, 0.01);
     let f_hi = (p_max + 0.5 * (1.0 - p_max)).clamp(0.9, 0.999);
     let x_lo = wl.ln_quantile(f_lo).exp().min(t_min).max(t_min / 100.0);
@@ -285,25 +374,46 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
         })
         .collect();
     let z = z95();
-    let band: Vec<(f64, f64, f64)> = grid
-        .iter()
-        .filter_map(|&p| {
-            let sd = wl.ln_quantile_sd(p)?;
-            let m = wl.ln_quantile(p);
-            Some((p, (m - z * sd).exp(), (m + z * sd).exp()))
-        })
-        .collect();
+    let band: Vec<(f64, f64, f64)> = if lower_scale.is_some() {
+        Vec::new()
+    } else {
+        grid.iter()
+            .filter_map(|&p| {
+                let sd = wl.ln_quantile_sd(p)?;
+                let m = wl.ln_quantile(p);
+                Some((p, (m - z * sd).exp(), (m + z * sd).exp()))
+            })
+            .collect()
+    };
     let fitted: Vec<(f64, f64)> = grid
         .iter()
         .map(|&p| (wl.ln_quantile(p).exp(), p))
         .filter(|(t, _)| *t >= x_lo && *t <= x_hi)
         .collect();
+    let lower_line: Vec<(f64, f64)> = match lower_scale {
+        Some(ls) => grid
+            .iter()
+            .map(|&p| (ls * (weibull_y(p) / shape).exp(), p))
+            .filter(|(t, _)| *t >= x_lo && *t <= x_hi)
+            .collect(),
+        None => Vec::new(),
+    };
 
+    let c = sample.counts();
+    let mut what = format!("{} failures", c.failures());
+    if c.interval_failures + c.left_censored > 0 {
+        what.push_str(&format!(
+            " ({} found at inspections)",
+            c.interval_failures + c.left_censored
+        ));
+    }
+    what.push_str(&format!(", {} suspensions", c.suspensions));
+    if c.truncated > 0 {
+        what.push_str(&format!(", {} with entry ages", c.truncated));
+    }
     let title = format!(
-        "Weibull probability plot, part '{}' ({} failures, {} suspensions)",
-        sample.part(),
-        sample.failures().len(),
-        sample.suspensions().len()
+        "Weibull probability plot, part '{}' ({what})",
+        sample.part()
     );
     let family = match line.distribution {
         Family::Exponential => "exponential (Weibull shape 1)".to_string(),
@@ -312,6 +422,7 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
     let method = match line.method {
         super::Method::Mle => "Maximum likelihood",
         super::Method::RankRegression => "Rank regression",
+        super::Method::AssumedShape => "Shape assumed",
     };
     let line_label = format!("{method}: {family}, scale {} h", fmt_hours(scale));
 
@@ -369,18 +480,72 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
             .map_err(plot_err)?
             .label(line_label)
             .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 22, y)], LINE.stroke_width(2)));
-        chart
-            .draw_series(
-                pts.iter()
-                    .filter(|(t, _)| *t >= x_lo && *t <= x_hi)
-                    .map(|&(t, p)| Circle::new((t, p), 4, INK.stroke_width(2))),
-            )
-            .map_err(plot_err)?
-            .label("failures at median ranks (Benard; Johnson-adjusted for suspensions)")
-            .legend(|(x, y)| Circle::new((x + 11, y), 4, INK.stroke_width(2)));
+        if let Some(a) = &line.assumed {
+            // Dashes drawn as short segments (the SVG backend has no dash style).
+            let dashes: Vec<Vec<(f64, f64)>> = lower_line
+                .chunks(4)
+                .step_by(2)
+                .map(|c| c.to_vec())
+                .filter(|c| c.len() > 1)
+                .collect();
+            let label = format!(
+                "{:.0}% one-sided lower bound ({}), scale {} h",
+                100.0 * a.confidence,
+                match a.bound {
+                    super::BoundMethod::ChiSquare { .. } => "chi-square",
+                    super::BoundMethod::LikelihoodRatio => "likelihood ratio",
+                },
+                fmt_hours(a.scale_lower)
+            );
+            let mut first = true;
+            for d in dashes {
+                let series = chart
+                    .draw_series(LineSeries::new(d, LINE.stroke_width(2)))
+                    .map_err(plot_err)?;
+                if first {
+                    series.label(label.clone()).legend(|(x, y)| {
+                        PathElement::new(vec![(x, y), (x + 8, y)], LINE.stroke_width(2))
+                    });
+                    first = false;
+                }
+            }
+        }
+        if !marks.spans.is_empty() {
+            chart
+                .draw_series(marks.spans.iter().map(|&(a, b, p)| {
+                    PathElement::new(vec![(clampx(a), p), (clampx(b), p)], SPAN.stroke_width(2))
+                }))
+                .map_err(plot_err)?;
+            chart
+                .draw_series(marks.spans.iter().map(|&(a, b, p)| {
+                    let mid = if a > 0.0 { (a * b).sqrt() } else { 0.5 * b };
+                    EmptyElement::at((clampx(mid), p))
+                        + Rectangle::new([(-4, -4), (4, 4)], SPAN.filled())
+                }))
+                .map_err(plot_err)?
+                .label("failures found at inspections: bar across the span they lie in")
+                .legend(|(x, y)| {
+                    EmptyElement::at((x + 11, y))
+                        + Rectangle::new([(-4, -4), (4, 4)], SPAN.filled())
+                        + PathElement::new(vec![(-11, 0), (11, 0)], SPAN.stroke_width(2))
+                });
+        }
+        if !marks.points.is_empty() {
+            chart
+                .draw_series(
+                    marks
+                        .points
+                        .iter()
+                        .filter(|(t, _)| *t >= x_lo && *t <= x_hi)
+                        .map(|&(t, p)| Circle::new((t, p), 4, INK.stroke_width(2))),
+                )
+                .map_err(plot_err)?
+                .label(marks.points_label)
+                .legend(|(x, y)| Circle::new((x + 11, y), 4, INK.stroke_width(2)));
+        }
         chart
             .configure_series_labels()
-            .position(SeriesLabelPosition::UpperLeft)
+            .position(SeriesLabelPosition::LowerRight)
             .background_style(WHITE.mix(0.92))
             .border_style(GRID_BOLD)
             .label_font(("sans-serif", 13).into_font().color(&INK))

@@ -15,31 +15,44 @@
 //! `ln t` on `y = ln(-ln(1 - F))` (the ranks are the better-known
 //! variable): `ln t = ln scale + y / shape`.
 
-use super::mle::{finish, weibull_loglik};
+use super::mle::{finish, weibull_ll};
+use super::sample::Observed;
 use super::{Family, Fit, FitError, Method, Sample};
 use crate::dist::Life;
 
 /// Failure hours with their Johnson-adjusted Benard median ranks
-/// (unreliability in (0, 1)), in increasing order of hours.
+/// (unreliability in (0, 1)), in increasing order of hours, one per failed
+/// part (counts expanded). Meant for exact failures and suspensions
+/// watched from new; inspection intervals and entry ages are ignored here
+/// (the plot uses [`super::turnbull`] for such data).
 pub fn median_ranks(sample: &Sample) -> Vec<(f64, f64)> {
-    let mut items: Vec<(f64, bool)> = sample
-        .failures()
+    // Canonical order is failures then suspensions, each by hours: merge
+    // them into one order by hours with failures first at equal hours
+    // (common practice).
+    let mut items: Vec<(f64, bool, f64)> = sample
+        .obs()
         .iter()
-        .map(|&t| (t, true))
-        .chain(sample.suspensions().iter().map(|&t| (t, false)))
+        .filter_map(|o| match o.what {
+            Observed::Failure(t) => Some((t, true, o.count)),
+            Observed::Suspension(t) => Some((t, false, o.count)),
+            Observed::Interval { .. } => None,
+        })
         .collect();
-    // Failures first at equal hours (common practice).
     items.sort_by(|a, b| a.0.total_cmp(&b.0).then(b.1.cmp(&a.1)));
-    let n = items.len() as f64;
+    let n: f64 = items.iter().map(|x| x.2).sum();
     let mut prev = 0.0;
-    let mut out = Vec::with_capacity(sample.failures().len());
-    for (i, &(t, failed)) in items.iter().enumerate() {
+    let mut before = 0.0;
+    let mut out = Vec::new();
+    for &(t, failed, count) in &items {
         if failed {
-            let reverse_rank = n - i as f64;
-            let rank = prev + (n + 1.0 - prev) / (1.0 + reverse_rank);
-            out.push((t, (rank - 0.3) / (n + 0.4)));
-            prev = rank;
+            for k in 0..count as usize {
+                let reverse_rank = n - (before + k as f64);
+                let rank = prev + (n + 1.0 - prev) / (1.0 + reverse_rank);
+                out.push((t, (rank - 0.3) / (n + 0.4)));
+                prev = rank;
+            }
         }
+        before += count;
     }
     out
 }
@@ -54,11 +67,21 @@ pub fn median_ranks(sample: &Sample) -> Vec<(f64, f64)> {
 /// two failures, [`FitError::Degenerate`] when all failures are at the
 /// same hours.
 pub fn fit_rank_regression(sample: &Sample) -> Result<Fit, FitError> {
-    let r = sample.failures().len();
+    let r = sample.failure_count();
     if r == 0 {
         return Err(FitError::NoFailures {
             part: sample.part().to_string(),
-            suspensions: sample.suspensions().len(),
+            suspensions: sample.suspension_count(),
+            lines: sample.lines(),
+        });
+    }
+    if !sample.is_plain() {
+        return Err(FitError::Degenerate {
+            part: sample.part().to_string(),
+            family: "weibull rank regression",
+            reason: "median ranks need exact failure ages of parts watched from new; these data \
+                     hold inspection intervals or entry ages (maximum likelihood uses them)"
+                .into(),
         });
     }
     if r < 2 {
@@ -93,7 +116,7 @@ pub fn fit_rank_regression(sample: &Sample) -> Result<Fit, FitError> {
     let shape = 1.0 / slope;
     let scale = (mx - slope * my).exp();
     let life = Life::weibull(shape, scale)?;
-    let loglik = weibull_loglik(sample.failures(), sample.suspensions(), shape, scale, 0.0);
+    let loglik = weibull_ll(sample.obs(), shape, scale, 0.0);
     let params = vec![
         super::Estimate {
             name: "shape",
@@ -124,6 +147,11 @@ pub fn fit_rank_regression(sample: &Sample) -> Result<Fit, FitError> {
         ],
     );
     fit.r_squared = Some(sxy * sxy / (sxx * syy));
+    fit.reliable = false;
+    fit.reliability_note = Some(
+        "rank regression is shown for comparison: it has no standard errors and is not ranked"
+            .to_string(),
+    );
     Ok(fit)
 }
 

@@ -1,13 +1,16 @@
 //! Text and JSON forms of fits, and the paste-ready scenario life block.
 //!
 //! Owns: number formatting for people, the AIC-ranked table, the
-//! `{"fits": [...], "not_fitted": [...]}` JSON and the
-//! `life = { dist = ... }` line in the scenario file's syntax.
+//! `{"source": ..., "parts": [...], "fits": [...], "not_fitted": [...]}`
+//! JSON and the `life = { dist = ... }` line in the scenario file's
+//! syntax, with comment lines saying what was fitted and from which
+//! records.
 //! May use: `serde_json`; nothing here does I/O.
 
 use serde::Serialize;
 
-use super::{Family, Fit, FitError, Method, NotFitted, PartFits, PartNotFitted};
+use super::records::RecordsSource;
+use super::{BoundMethod, Family, Fit, FitError, Method, NotFitted, PartFits, PartNotFitted};
 use crate::dist::Life;
 
 /// `x` to about 4 significant digits, plain notation for ordinary
@@ -80,9 +83,123 @@ pub fn scenario_life_block(fit: &Fit) -> String {
     }
 }
 
+/// What a part's data held, e.g. "12 failures (3 found at inspections, 1
+/// of them at the first), 58 suspensions, 10 with entry ages".
+pub fn data_text(p: &PartFits) -> String {
+    let c = p.counts;
+    let mut t = format!("{} failures", c.failures());
+    let found = c.interval_failures + c.left_censored;
+    if found > 0 {
+        t.push_str(&format!(" ({found} found at inspections"));
+        if c.left_censored > 0 {
+            t.push_str(&format!(", {} of them at the first", c.left_censored));
+        }
+        t.push(')');
+    }
+    t.push_str(&format!(", {} suspensions", c.suspensions));
+    if c.truncated > 0 {
+        t.push_str(&format!(", {} with entry ages", c.truncated));
+    }
+    t
+}
+
+/// Where a part's records came from, e.g. "part 'fan' of fans.csv, lines
+/// 3-72" (and, for a removal log, "; a removal log, current readings from
+/// meters.csv").
+fn from_text(p: &PartFits, source: Option<&RecordsSource>) -> String {
+    let mut t = format!("part '{}'", p.part);
+    if let Some(s) = source {
+        t.push_str(&format!(" of {}", s.file));
+    }
+    if let Some((a, b)) = p.lines {
+        t.push_str(&format!(", lines {a}-{b}"));
+    }
+    if let Some(s) = source
+        && s.log.is_some()
+    {
+        t.push_str("; a removal log");
+        if let Some(m) = &s.meters {
+            t.push_str(&format!(", current readings from {m}"));
+        }
+    }
+    t
+}
+
+/// A TOML basic string.
+fn toml_string(s: &str) -> String {
+    let mut out = String::from("\"");
+    for c in s.chars() {
+        match c {
+            '"' => out.push_str("\\\""),
+            '\\' => out.push_str("\\\\"),
+            c if (c as u32) < 0x20 => out.push_str(&format!("\\u{:04X}", c as u32)),
+            c => out.push(c),
+        }
+    }
+    out.push('"');
+    out
+}
+
+/// The life table that refits the chosen fit from the records each time a
+/// scenario is read, e.g.
+/// `life = { records = "fans.csv", dist = "weibull", part = "fan" }`.
+pub fn records_reference(p: &PartFits, source: &RecordsSource) -> Option<String> {
+    let (fit, _) = p.chosen()?;
+    let dist = if fit.method == Method::AssumedShape {
+        "weibull"
+    } else {
+        fit.distribution.name()
+    };
+    let mut t = format!(
+        "life = {{ records = {}, dist = \"{dist}\", part = {}",
+        toml_string(&source.file),
+        toml_string(&p.part)
+    );
+    if let Some(m) = &source.meters {
+        t.push_str(&format!(", meters = {}", toml_string(m)));
+    }
+    if let Some(a) = &fit.assumed {
+        t.push_str(&format!(", assumed_shape = {}", toml_number(a.shape)));
+    }
+    t.push_str(" }");
+    Some(t)
+}
+
+/// The chosen fit's life block with comment lines saying what was fitted,
+/// why, and from which records (and, with a source, the line that refits
+/// it from the records instead). Every line parses as TOML.
+pub fn scenario_life_block_commented(
+    p: &PartFits,
+    source: Option<&RecordsSource>,
+) -> Option<String> {
+    let (fit, why) = p.chosen()?;
+    let mut t = format!(
+        "# fitted to {}: {}\n# {}\n{}",
+        from_text(p, source),
+        data_text(p),
+        why,
+        scenario_life_block(fit)
+    );
+    if !fit.reliable
+        && let Some(n) = &fit.reliability_note
+    {
+        t = format!("# caution: {n}\n{t}");
+    }
+    if let Some(s) = source
+        && let Some(r) = records_reference(p, s)
+    {
+        t.push_str(&format!(
+            "\n# or refit from the records whenever the scenario is read (path relative to the \
+             scenario file):\n# {r}"
+        ));
+    }
+    Some(t)
+}
+
 /// Parameters with intervals, e.g. `shape 2.102 [1.523, 2.900]  scale 81.88 [...]`.
 fn params_text(fit: &Fit) -> String {
-    fit.params
+    let mut t = fit
+        .params
         .iter()
         // The exponential's rate is 1 / mean; the table shows the mean (MTBF).
         .filter(|e| !(fit.distribution == Family::Exponential && e.name == "rate"))
@@ -94,10 +211,25 @@ fn params_text(fit: &Fit) -> String {
                 fmt_sig(lo),
                 fmt_sig(hi)
             ),
+            None if fit.method == Method::AssumedShape && e.name == "shape" => {
+                format!("shape {} (assumed)", fmt_sig(e.value))
+            }
             None => format!("{} {}", e.name, fmt_sig(e.value)),
         })
         .collect::<Vec<_>>()
-        .join("  ")
+        .join("  ");
+    if let Some(a) = &fit.assumed {
+        t.push_str(&format!(
+            "  scale >= {} ({:.0}% one-sided, {})",
+            fmt_sig(a.scale_lower),
+            100.0 * a.confidence,
+            match a.bound {
+                BoundMethod::ChiSquare { dof } => format!("chi-square, {dof} d.f."),
+                BoundMethod::LikelihoodRatio => "likelihood ratio".to_string(),
+            }
+        ));
+    }
+    t
 }
 
 fn pad_table(rows: &[Vec<String>], right: &[bool]) -> Vec<String> {
@@ -127,23 +259,43 @@ fn pad_table(rows: &[Vec<String>], right: &[bool]) -> Vec<String> {
         .collect()
 }
 
+fn interval_text(ci: Option<[f64; 2]>) -> String {
+    match ci {
+        Some([a, b]) => format!("[{}, {}]", fmt_sig(a), fmt_sig(b)),
+        None => "open-ended".to_string(),
+    }
+}
+
 /// The readable report: per part, one row per distribution ranked by AIC
-/// (best marked `*`), parameters with 95% intervals, the Weibull
-/// rank-regression row beside the Weibull MLE, what could not be fitted
-/// and why, and the paste-ready scenario block of the best fit.
+/// (best marked `*`, fits whose standard errors cannot be trusted marked
+/// `no` under "reliable"), parameters with 95% intervals, the Weibull
+/// rank-regression row beside the Weibull MLE, the assumed-shape row when
+/// a shape was given, the Weibull's likelihood-ratio intervals and
+/// B-lives, what could not be fitted and why, and the paste-ready scenario
+/// block of the chosen fit.
 pub fn table(parts: &[PartFits]) -> String {
+    table_with_source(parts, None)
+}
+
+/// [`table`], saying which records each part came from.
+pub fn table_with_source(parts: &[PartFits], source: Option<&RecordsSource>) -> String {
     let mut out = String::new();
     for (pi, p) in parts.iter().enumerate() {
         if pi > 0 {
             out.push('\n');
         }
         out.push_str(&format!(
-            "Part '{}': {} failures, {} suspensions ({} records)\n\n",
+            "Part '{}': {} failures, {} suspensions ({} records)\n",
             p.part,
             p.failures,
             p.suspensions,
             p.failures + p.suspensions
         ));
+        let c = p.counts;
+        if c.interval_failures + c.left_censored + c.truncated > 0 {
+            out.push_str(&format!("  {}\n", data_text(p)));
+        }
+        out.push('\n');
         let best_aic = p.best().map_or(f64::NAN, |b| b.aic);
         let mut rows = vec![vec![
             "rank".to_string(),
@@ -153,8 +305,10 @@ pub fn table(parts: &[PartFits]) -> String {
             "loglik".into(),
             "AIC".into(),
             "dAIC".into(),
+            "reliable".into(),
         ]];
-        let row = |f: &Fit, rank: String, daic: String| {
+        let yes_no = |f: &Fit| if f.reliable { "yes" } else { "no" }.to_string();
+        let row = |f: &Fit, rank: String, daic: String, reliable: String| {
             vec![
                 rank,
                 f.distribution.name().to_string(),
@@ -163,10 +317,11 @@ pub fn table(parts: &[PartFits]) -> String {
                 format!("{:.3}", f.loglik),
                 format!("{:.2}", f.aic),
                 daic,
+                reliable,
             ]
         };
         let rr_row = |rr: &Fit| {
-            let mut r = row(rr, "-".into(), "-".into());
+            let mut r = row(rr, "-".into(), "-".into(), "-".into());
             r[3] = format!(
                 "{}  (R^2 {:.4})",
                 params_text(rr),
@@ -180,7 +335,7 @@ pub fn table(parts: &[PartFits]) -> String {
                 Some(r) => r.to_string(),
                 None => String::new(),
             };
-            rows.push(row(f, rank, format!("{:.2}", f.aic - best_aic)));
+            rows.push(row(f, rank, format!("{:.2}", f.aic - best_aic), yes_no(f)));
             if f.distribution == Family::Weibull
                 && let Some(rr) = &p.rank_regression
             {
@@ -192,7 +347,10 @@ pub fn table(parts: &[PartFits]) -> String {
         {
             rows.push(rr_row(rr));
         }
-        for line in pad_table(&rows, &[true, false, false, false, true, true, true]) {
+        if let Some(a) = &p.assumed_shape {
+            rows.push(row(a, "-".into(), "-".into(), yes_no(a)));
+        }
+        for line in pad_table(&rows, &[true, false, false, false, true, true, true, false]) {
             out.push_str(&line);
             out.push('\n');
         }
@@ -200,18 +358,56 @@ pub fn table(parts: &[PartFits]) -> String {
             "\n  * = lowest AIC (best). Intervals: log-Wald from the observed information \
              (mu: Wald); the rank_regression row is for comparison and is not ranked.\n",
         );
-        if let Some(ci) = p.mle_of(Family::Weibull).and_then(|w| w.lr_ci95("shape")) {
-            out.push_str(&format!(
-                "  Weibull shape, likelihood-ratio 95% interval: [{}, {}]\n",
-                fmt_sig(ci[0]),
-                fmt_sig(ci[1])
-            ));
+        if let Some(w) = p.mle_of(Family::Weibull) {
+            if !w.lr_ci95.is_empty() {
+                out.push_str(&format!(
+                    "  Weibull, likelihood-ratio 95% intervals: shape {}, scale {}\n",
+                    interval_text(w.lr_ci95("shape")),
+                    interval_text(w.lr_ci95("scale")),
+                ));
+            }
+            for b in &w.b_lives {
+                out.push_str(&format!(
+                    "  Weibull {} life (by which {:.0}% fail): {} h, 95% log-Wald {}, \
+                     likelihood-ratio {}\n",
+                    b.name,
+                    100.0 * b.p,
+                    fmt_sig(b.value),
+                    interval_text(b.ci95),
+                    interval_text(b.lr_ci95)
+                ));
+            }
         }
-        for f in p.mle.iter().chain(&p.rank_regression) {
-            for n in &f.notes {
-                if f.method == Method::Mle {
-                    out.push_str(&format!("  note, {}: {}\n", f.distribution.name(), n));
+        if let Some(a) = &p.assumed_shape {
+            for b in &a.b_lives {
+                if let Some(lb) = b.lower_bound {
+                    out.push_str(&format!(
+                        "  Assumed shape, {} life: {} h, one-sided {:.0}% lower bound {} h\n",
+                        b.name,
+                        fmt_sig(b.value),
+                        100.0 * a.assumed.as_ref().map_or(0.95, |x| x.confidence),
+                        fmt_sig(lb)
+                    ));
                 }
+            }
+        }
+        for f in p.mle.iter().chain(&p.assumed_shape) {
+            if let Some(n) = &f.reliability_note {
+                out.push_str(&format!(
+                    "  not reliable, {}: {}\n",
+                    f.distribution.name(),
+                    n
+                ));
+            }
+        }
+        for f in p.mle.iter().chain(&p.assumed_shape) {
+            for n in &f.notes {
+                let name = if f.method == Method::AssumedShape {
+                    "assumed shape"
+                } else {
+                    f.distribution.name()
+                };
+                out.push_str(&format!("  note, {name}: {n}\n"));
             }
         }
         for nf in &p.not_fitted {
@@ -222,30 +418,78 @@ pub fn table(parts: &[PartFits]) -> String {
                 nf.reason
             ));
         }
-        if let Some(b) = p.best() {
-            out.push_str(&format!(
-                "\n  Paste into the scenario ({} by maximum likelihood, lowest AIC):\n",
-                b.distribution.name()
-            ));
-            out.push_str(&format!("  {}\n", scenario_life_block(b)));
+        if let Some((_, why)) = p.chosen() {
+            out.push_str(&format!("\n  Paste into the scenario ({why}):\n"));
+            if let Some(block) = scenario_life_block_commented(p, source) {
+                for l in block.lines() {
+                    out.push_str(&format!("  {l}\n"));
+                }
+            }
         }
     }
     out
 }
 
 #[derive(Serialize)]
+struct SourceOut<'a> {
+    file: &'a str,
+    format: &'static str,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    meters: Option<&'a str>,
+    rows: usize,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    removal_log: Option<LogOut>,
+}
+
+#[derive(Serialize)]
+struct LogOut {
+    failures: usize,
+    planned_removals: usize,
+    still_fitted: usize,
+    entry_ages: usize,
+}
+
+#[derive(Serialize)]
+struct ChosenOut<'a> {
+    distribution: Family,
+    method: Method,
+    because: String,
+    reliable: bool,
+    life_block: String,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    records_reference: Option<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    reliability_note: Option<&'a str>,
+}
+
+#[derive(Serialize)]
+struct PartOut<'a> {
+    part: &'a str,
+    failures: usize,
+    suspensions: usize,
+    exact_failures: usize,
+    interval_failures: usize,
+    left_censored: usize,
+    entry_ages: usize,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    lines: Option<[u64; 2]>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    chosen: Option<ChosenOut<'a>>,
+}
+
+#[derive(Serialize)]
 struct FitsOut<'a> {
+    #[serde(skip_serializing_if = "Option::is_none")]
+    source: Option<SourceOut<'a>>,
+    parts: Vec<PartOut<'a>>,
     fits: Vec<&'a Fit>,
     not_fitted: Vec<&'a NotFitted>,
     #[serde(skip_serializing_if = "<[_]>::is_empty")]
     parts_not_fitted: &'a [PartNotFitted],
 }
 
-/// The JSON report: `{"fits": [...], "not_fitted": [...]}`, each part's
-/// MLE fits in AIC order followed by its rank regression; `not_fitted`
-/// lists the (part, distribution, method) fits that could not be made and
-/// why, and `parts_not_fitted` (only when not empty) the parts with
-/// nothing to fit.
+/// The JSON report: `{"parts": [...], "fits": [...], "not_fitted": [...]}`;
+/// see [`fits_json_with_source`].
 ///
 /// # Errors
 /// [`FitError::Output`] if serialisation fails.
@@ -253,10 +497,72 @@ pub fn fits_json(
     parts: &[PartFits],
     parts_not_fitted: &[PartNotFitted],
 ) -> Result<String, FitError> {
+    fits_json_with_source(parts, parts_not_fitted, None)
+}
+
+/// The JSON report: `source` (the file read, records or removal log, and
+/// what a log turned into), `parts` (per part: counts of each kind of
+/// observation, the lines of its records, and the chosen fit with why, its
+/// life block and the records reference that refits it), `fits` (each
+/// part's MLE fits in AIC order, its rank regression and its assumed-shape
+/// fit), `not_fitted` (the (part, distribution, method) fits that could
+/// not be made and why) and `parts_not_fitted` (only when not empty: the
+/// parts with nothing to fit).
+///
+/// # Errors
+/// [`FitError::Output`] if serialisation fails.
+pub fn fits_json_with_source(
+    parts: &[PartFits],
+    parts_not_fitted: &[PartNotFitted],
+    source: Option<&RecordsSource>,
+) -> Result<String, FitError> {
     let out = FitsOut {
+        source: source.map(|s| SourceOut {
+            file: &s.file,
+            format: if s.log.is_some() {
+                "removal_log"
+            } else {
+                "records"
+            },
+            meters: s.meters.as_deref(),
+            rows: s.rows,
+            removal_log: s.log.map(|l| LogOut {
+                failures: l.failures,
+                planned_removals: l.planned,
+                still_fitted: l.still_fitted,
+                entry_ages: l.entry_ages,
+            }),
+        }),
+        parts: parts
+            .iter()
+            .map(|p| PartOut {
+                part: &p.part,
+                failures: p.failures,
+                suspensions: p.suspensions,
+                exact_failures: p.counts.exact_failures,
+                interval_failures: p.counts.interval_failures,
+                left_censored: p.counts.left_censored,
+                entry_ages: p.counts.truncated,
+                lines: p.lines.map(|(a, b)| [a, b]),
+                chosen: p.chosen().map(|(f, why)| ChosenOut {
+                    distribution: f.distribution,
+                    method: f.method,
+                    because: why,
+                    reliable: f.reliable,
+                    life_block: scenario_life_block(f),
+                    records_reference: source.and_then(|s| records_reference(p, s)),
+                    reliability_note: f.reliability_note.as_deref(),
+                }),
+            })
+            .collect(),
         fits: parts
             .iter()
-            .flat_map(|p| p.mle.iter().chain(&p.rank_regression))
+            .flat_map(|p| {
+                p.mle
+                    .iter()
+                    .chain(&p.rank_regression)
+                    .chain(&p.assumed_shape)
+            })
             .collect(),
         not_fitted: parts.iter().flat_map(|p| &p.not_fitted).collect(),
         parts_not_fitted,

@@ -17,7 +17,10 @@ use thiserror::Error;
 use toml::de::DeTable;
 
 use crate::dist::{DistError, Hours, LeadTime, Life};
-use crate::fit::{Family, Fit, Record, Sample, fit_mle, fit_part, read_records, select_parts};
+use crate::fit::{
+    DEFAULT_CONFIDENCE, Family, Fit, Record, Sample, fit_assumed_shape, fit_mle, fit_part,
+    read_records_or_log, select_parts,
+};
 use crate::model::{
     CostBasis, CostMeasure, CostStatistic, FleetGroup, InitialAge, Model, PartPolicy, PartSearch,
     PartType, Policy, Position, Rule, SearchSpace, UnitType,
@@ -322,10 +325,12 @@ fn read_life_or_records(
 }
 
 /// `life = { records = "file.csv", dist = "weibull", part = "..." }`: read
-/// the records (relative to `base`), pick the part's rows, fit by maximum
-/// likelihood. Without `part`, a file of one part is used whole, and a file
-/// of several parts is searched for the scenario's part name (exact, then
-/// ignoring ASCII case).
+/// the records (relative to `base`; a removal log with its current meter
+/// readings from `meters = "..."`), pick the part's rows, fit by maximum
+/// likelihood, or with `assumed_shape = B` fit the Weibull of that shape
+/// (which also works without failures). Without `part`, a file of one part
+/// is used whole, and a file of several parts is searched for the
+/// scenario's part name (exact, then ignoring ASCII case).
 fn read_records_life(
     v: Val<'_, '_>,
     part: &str,
@@ -335,7 +340,7 @@ fn read_records_life(
     // Each field's place, for errors raised after the table is read.
     let (rel, at_records) = t.need(
         "records",
-        "the records CSV file, relative to the scenario file's folder",
+        "the records CSV file (or a removal log), relative to the scenario file's folder",
         |v| {
             let s = v.string()?;
             if s.trim().is_empty() {
@@ -346,10 +351,10 @@ fn read_records_life(
             Ok((s.to_string(), v.error(String::new())))
         },
     )?;
-    let dist = t.need(
+    let (dist, at_dist) = t.need(
         "dist",
         "the family to fit: one of weibull, weibull3, lognormal, gamma, exponential, or best (lowest AIC)",
-        |v| v.one_of(RECORDS_DISTS),
+        |v| Ok((v.one_of(RECORDS_DISTS)?, v.error(String::new()))),
     )?;
     let wanted = t.with("part", |v| {
         let s = v.string()?;
@@ -358,11 +363,37 @@ fn read_records_life(
         }
         Ok((s.to_string(), v.error(String::new())))
     })?;
-    t.finish(&["records", "dist", "part"])?;
+    let meters = t.with("meters", |v| {
+        let s = v.string()?;
+        if s.trim().is_empty() {
+            return Err(v.error(
+                "give the path of the units' current meter readings (CSV: unit, meter), relative to the scenario file's folder",
+            ));
+        }
+        Ok((s.to_string(), v.error(String::new())))
+    })?;
+    let assumed = t.with("assumed_shape", |v| {
+        let b = v.positive()?;
+        if b > 1e3 {
+            return Err(v.error(format!(
+                "the assumed Weibull shape must be at most 1000 (got {b})"
+            )));
+        }
+        Ok(b)
+    })?;
+    t.finish(&["records", "dist", "part", "meters", "assumed_shape"])?;
     let err_at = |at: &ScenarioError, message: String| ScenarioError {
         message,
         ..at.clone()
     };
+    if assumed.is_some() && dist != "weibull" {
+        return Err(err_at(
+            &at_dist,
+            format!(
+                "`assumed_shape` fixes a Weibull shape, so `dist` must be \"weibull\" (got \"{dist}\")"
+            ),
+        ));
+    }
     let Some(base) = base else {
         return Err(err_at(
             &at_records,
@@ -373,7 +404,18 @@ fn read_records_life(
     };
     let path = base.join(&rel);
     let shown = path.display().to_string();
-    let records = read_records(&path).map_err(|e| err_at(&at_records, e.to_string()))?;
+    let meters_path = meters.as_ref().map(|(m, _)| base.join(m));
+    let (records, _) = read_records_or_log(&path, meters_path.as_deref()).map_err(|e| {
+        let at = match (&meters, &e) {
+            (Some((m, at)), crate::fit::FitError::Io { path, .. })
+                if path.ends_with(m.as_str()) =>
+            {
+                at
+            }
+            _ => &at_records,
+        };
+        err_at(at, e.to_string())
+    })?;
     let sample = match &wanted {
         Some((name, at_part)) => {
             one_part(&records, name).map_err(|m| err_at(at_part, format!("{shown}: {m}")))?
@@ -398,8 +440,11 @@ fn read_records_life(
             }
         }
     };
-    let fit =
-        fit_records(&sample, dist).map_err(|m| err_at(&at_records, format!("{shown}: {m}")))?;
+    let fit = match assumed {
+        Some(b) => fit_assumed_shape(&sample, b, DEFAULT_CONFIDENCE).map_err(|e| e.to_string()),
+        None => fit_records(&sample, dist),
+    }
+    .map_err(|m| err_at(&at_records, format!("{shown}: {m}")))?;
     let u = LifeUncertainty::from_fit(&fit, &sample)
         .map_err(|e| err_at(&at_records, format!("{shown}: {e}")))?;
     Ok((fit.life(), u))
