@@ -340,7 +340,7 @@ fn fleet(model: &Model) -> Fleet {
             Rule::Age(t) => t,
             _ => f64::INFINITY,
         }),
-        stock: std::array::from_fn(|p| policy.parts[p].stock),
+        stock: std::array::from_fn(|p| policy.parts[p].stock.site(0)),
         horizon: model.horizon,
     }
 }

@@ -16,8 +16,31 @@
 //! with the old part still running, so they cost no down time. A unit's down
 //! hours per up hour are `sum_i down_i / c_i`, and its availability is
 //! `1 / (1 + sum_i down_i / c_i)`.
+//!
+//! With rotables, sites and a depot the plan pools every spare of a part
+//! type (all sites and the depot together) against one pipeline: the mean
+//! time for a removed part to come back (its repair time, or for the
+//! condemned share the lead time; a consumable's lead time), plus with a
+//! depot the mean transport time to a site (weighted by the sites'
+//! positions). A rotable's demand costs its repair (or for the condemned
+//! share its price) instead of a new part. A ready-units target is met when
+//! every site's expected units up (the sum of its units' availabilities)
+//! reach its count.
 
 use crate::model::{Model, Money, Policy, Rule};
+
+/// One part type in the plan on averages.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct PartPlan {
+    /// Demands per operating hour of the fleet (removals for a rotable).
+    pub demand_per_hour: f64,
+    /// Hours from a demand until its spare is back on a site's shelf: the
+    /// pipeline time the stock covers.
+    pub resupply_hours: f64,
+    /// Parts on their way back at any moment: demand x resupply time (for
+    /// a rotable, its repair pipeline).
+    pub pipeline: f64,
+}
 
 /// The plan-on-averages prediction for one policy.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
@@ -35,6 +58,8 @@ pub struct AveragesPlan {
     pub planned: f64,
     /// Whether the plan predicts meeting the target (it has no chances: yes or no).
     pub meets_target: bool,
+    /// Per part type.
+    pub parts: Vec<PartPlan>,
 }
 
 /// Compute the plan-on-averages figures of `policy`.
@@ -58,17 +83,58 @@ pub fn plan_on_averages(model: &Model, policy: &Policy) -> AveragesPlan {
         }
     }
     let installed = model.installed_count();
+    // The mean transport time from the depot, weighted by each site's
+    // positions of the part type.
+    let transport: Vec<f64> = (0..n_parts)
+        .map(|p| match &model.depot {
+            None => 0.0,
+            Some(depot) => {
+                let mut at = vec![0.0; model.sites.len()];
+                for u in &model.units {
+                    at[u.site] += u.parts.iter().filter(|&&q| q == p).count() as f64;
+                }
+                let n: f64 = at.iter().sum();
+                if n > 0.0 {
+                    at.iter()
+                        .zip(&depot.transport)
+                        .map(|(a, t)| a * t.mean())
+                        .sum::<f64>()
+                        / n
+                } else {
+                    0.0
+                }
+            }
+        })
+        .collect();
+    // Resupply time per demand: the part's return (a rotable's repair, or
+    // its lead time when condemned; a consumable's lead time), plus the
+    // transport from the depot.
+    let resupply: Vec<f64> = model
+        .parts
+        .iter()
+        .enumerate()
+        .map(|(p, part)| {
+            let condemn = part.repair.as_ref().map_or(1.0, |r| {
+                if fails[p] {
+                    r.condemn_failed
+                } else {
+                    r.condemn_planned
+                }
+            });
+            part.mean_return(condemn) + transport[p]
+        })
+        .collect();
     // Down hours per cycle, with the fluid-queue wait for unplanned demands.
     let mut down = vec![0.0; n_parts];
     for (p, part) in model.parts.iter().enumerate() {
         if fails[p] {
             let d = installed[p] as f64 / cycle[p];
             let cover = if d > 0.0 {
-                policy.parts[p].stock as f64 / d
+                policy.parts[p].stock.total() as f64 / d
             } else {
                 f64::INFINITY
             };
-            let wait = (part.lead_time.mean() - cover).max(0.0);
+            let wait = (resupply[p] - cover).max(0.0);
             down[p] = part.duration_unplanned + wait;
         } else {
             down[p] = part.duration_planned;
@@ -77,11 +143,13 @@ pub fn plan_on_averages(model: &Model, policy: &Policy) -> AveragesPlan {
     let h = model.horizon;
     let mut up_total = 0.0;
     let mut up_per_unit = Vec::with_capacity(model.units.len());
+    let mut site_up = vec![0.0; model.sites.len()];
     for unit in &model.units {
         let ratio: f64 = unit.parts.iter().map(|&p| down[p] / cycle[p]).sum();
         let a = 1.0 / (1.0 + ratio);
         up_per_unit.push(a * h);
         up_total += a * h;
+        site_up[unit.site] += a;
     }
     let availability = up_total / (model.units.len() as f64 * h);
     let mut spend = 0.0;
@@ -96,6 +164,7 @@ pub fn plan_on_averages(model: &Model, policy: &Policy) -> AveragesPlan {
             penalty += up / cycle[p] * down[p] * model.downtime_penalty;
         }
     }
+    let mut parts = Vec::with_capacity(n_parts);
     for (p, part) in model.parts.iter().enumerate() {
         let n = demands[p];
         let labour = if fails[p] {
@@ -105,16 +174,44 @@ pub fn plan_on_averages(model: &Model, policy: &Policy) -> AveragesPlan {
             planned += n;
             part.labour_planned
         };
+        // A rotable's demand buys a part only when condemned; else it pays
+        // the repair.
+        let material = match &part.repair {
+            Some(r) => {
+                let (condemn, cost) = if fails[p] {
+                    (r.condemn_failed, r.cost_failed)
+                } else {
+                    (r.condemn_planned, r.cost_planned)
+                };
+                condemn * part.price + (1.0 - condemn) * cost
+            }
+            None => part.price,
+        };
+        let shipping = model.depot.as_ref().map_or(0.0, |d| d.cost_per_shipment);
         let rate = n / h;
-        let on_hand = (policy.parts[p].stock as f64 - rate * part.lead_time.mean()).max(0.0);
-        spend += n * (part.price + labour) + on_hand * part.holding_per_hour * h;
+        let on_hand = (policy.parts[p].stock.total() as f64 - rate * resupply[p]).max(0.0);
+        spend += n * (material + labour + shipping) + on_hand * part.holding_per_hour * h;
+        parts.push(PartPlan {
+            demand_per_hour: rate,
+            resupply_hours: resupply[p],
+            pipeline: rate * resupply[p],
+        });
     }
+    let meets_target = match &model.ready {
+        // Every site's expected units up reach its count.
+        Some(r) => site_up
+            .iter()
+            .zip(&r.at_least)
+            .all(|(&up, &k)| up >= k as f64),
+        None => availability >= model.target,
+    };
     AveragesPlan {
         availability,
         cost: spend + penalty,
         spend,
         failures,
         planned,
-        meets_target: availability >= model.target,
+        meets_target,
+        parts,
     }
 }

@@ -22,7 +22,7 @@
 //! a mean life of 1e-300 h) where closed forms overflow.
 
 use crate::frontier::FrontierConfig;
-use crate::model::{Model, PartPolicy, Policy, Rule};
+use crate::model::{Model, PartPolicy, Policy, Rule, Stock};
 use crate::run::BLOCK;
 
 /// Events per renewal of a position: its failure or due event and, when
@@ -336,7 +336,7 @@ pub fn trial_work(model: &Model, parts: &[PartPolicy], active: Option<usize>) ->
         ]
         .iter()
         .all(|x| x.is_finite());
-        let stock = f64::from(pp.stock);
+        let stock = f64::from(pp.stock.total());
         money += times(
             pt.price + pt.labour_planned + pt.labour_unplanned,
             (per_part[p] + 1.0) * installed[p] as f64,
@@ -472,7 +472,7 @@ pub fn frontier(model: &Model, config: &FrontierConfig, threads: usize) -> Estim
     let base_parts: Vec<PartPolicy> = vec![
         PartPolicy {
             rule: Rule::RunToFailure,
-            stock: 0,
+            stock: Stock::single(0),
         };
         n_parts
     ];
@@ -484,7 +484,7 @@ pub fn frontier(model: &Model, config: &FrontierConfig, threads: usize) -> Estim
             let mut parts = base_parts.clone();
             parts[p] = PartPolicy {
                 rule,
-                stock: ps.stock_max,
+                stock: Stock::single(ps.stock_max),
             };
             let w = trial_work(model, &parts, Some(p));
             money = money.max(w.money);

@@ -1,4 +1,5 @@
-//! The validated fleet model: part types, unit types, the fleet, policies.
+//! The validated fleet model: part types, unit types, the fleet, sites and
+//! a depot, policies.
 //!
 //! Owns: the types every later stage reads. A value of these types has been
 //! checked (by `scenario`, or by a constructor in tests), so the simulation
@@ -46,6 +47,9 @@ pub struct PartType {
     /// (`life` is then its point estimate); `None` for a life given as
     /// parameters. Drawn per trial when [`Model::parameter_uncertainty`] is on.
     pub life_uncertainty: Option<LifeUncertainty>,
+    /// The repair loop of a repairable part type (a rotable); `None` for a
+    /// consumable part, scrapped at removal.
+    pub repair: Option<Repair>,
 }
 
 impl PartType {
@@ -53,6 +57,90 @@ impl PartType {
     pub fn is_safety_critical(&self) -> bool {
         self.hard_limit.is_some()
     }
+
+    /// True for a repairable part type (a rotable).
+    pub fn is_repairable(&self) -> bool {
+        self.repair.is_some()
+    }
+
+    /// Mean hours from a removal until a part is back on a shelf, for the
+    /// mean-life plan: the mean repair time, or the mean lead time for the
+    /// condemned share (`condemn` is the removal's condemnation chance).
+    /// A consumable's is its mean lead time. The wait for a repair channel
+    /// is left out.
+    pub fn mean_return(&self, condemn: f64) -> Hours {
+        match &self.repair {
+            Some(r) => (1.0 - condemn) * r.time.mean() + condemn * self.lead_time.mean(),
+            None => self.lead_time.mean(),
+        }
+    }
+}
+
+/// The repair loop of a repairable part type (MODEL.md, "Rotables"): a
+/// removed part is condemned (scrapped, and a new one bought) with a chance,
+/// else repaired to as good as new.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Repair {
+    /// Repair time of one part (the wait for a channel not included).
+    pub time: LeadTime,
+    /// Repair cost of a part removed at a planned replacement.
+    pub cost_planned: Money,
+    /// Repair cost of a part removed after a failure.
+    pub cost_failed: Money,
+    /// Chance that a part removed at a planned replacement is condemned.
+    pub condemn_planned: f64,
+    /// Chance that a failed part is condemned.
+    pub condemn_failed: f64,
+    /// Repair channels (parts repaired at once), first come first served;
+    /// `None`: unlimited.
+    pub channels: Option<u32>,
+}
+
+/// A place where units are kept and spares are held (a garage, a mine
+/// site). A scenario without sites has one implicit site holding the whole
+/// fleet.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Site {
+    pub name: String,
+    /// True for the one site a scenario without `[sites]` has.
+    pub implicit: bool,
+}
+
+/// A central store above the sites, resupplying them one for one.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Depot {
+    /// Transport time from the depot to each site, indexed by site.
+    pub transport: Vec<LeadTime>,
+    /// Money per shipment from the depot to a site.
+    pub cost_per_shipment: Money,
+}
+
+/// Lateral supply: a failure that finds its site's shelf empty may take a
+/// spare from another site.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Lateral {
+    /// Time for a spare to reach the failed unit from the giving site.
+    pub transfer: LeadTime,
+    /// Money per lateral transfer.
+    pub cost_per_transfer: Money,
+}
+
+/// The ready-units target: at least `at_least[i]` units up at every site
+/// `i` at once, for at least the share [`Model::target`] of the horizon.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ReadyTarget {
+    /// Per site, the units that must be up.
+    pub at_least: Vec<u32>,
+}
+
+/// Which per-trial figure the target is of.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Measure {
+    /// Fleet availability, against `A*`.
+    Availability,
+    /// Readiness (the share of the horizon with every site at its ready
+    /// count), against the share `q`.
+    Readiness,
 }
 
 /// How a part's age at time 0 is set.
@@ -88,6 +176,8 @@ pub struct FleetGroup {
     /// Index into [`Model::unit_types`].
     pub unit_type: usize,
     pub count: usize,
+    /// Index into [`Model::sites`].
+    pub site: usize,
     /// Initial age for each part type of the unit type (indexed by part id;
     /// only the part types the unit holds are read).
     pub initial_age: Vec<InitialAge>,
@@ -99,6 +189,8 @@ pub struct Unit {
     pub group: usize,
     /// Index of this unit within its group.
     pub index_in_group: usize,
+    /// Index into [`Model::sites`].
+    pub site: usize,
     /// Part id of each position.
     pub parts: Vec<PartId>,
 }
@@ -170,12 +262,106 @@ fn fmt_hours(t: Hours) -> String {
     }
 }
 
+/// The base-stock levels of one part type: one per site, and one at the
+/// depot. Without sites it is the single level `S` of the one store.
+///
+/// The first site's level is kept apart from the others so that the
+/// single-site case needs no allocation.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Stock {
+    first: u32,
+    /// Levels at sites 1, 2, ... (empty with one site).
+    rest: Vec<u32>,
+    depot: u32,
+}
+
+impl Stock {
+    /// The level `S` of a scenario without sites or depot.
+    pub fn single(s: u32) -> Self {
+        Stock {
+            first: s,
+            rest: Vec::new(),
+            depot: 0,
+        }
+    }
+
+    /// Levels at each site (at least one) and at the depot (0 without one).
+    ///
+    /// # Panics
+    /// When `sites` is empty (a bug).
+    pub fn at_sites(sites: &[u32], depot: u32) -> Self {
+        assert!(!sites.is_empty(), "at least one site");
+        Stock {
+            first: sites[0],
+            rest: sites[1..].to_vec(),
+            depot,
+        }
+    }
+
+    /// Number of sites the levels are for.
+    pub fn sites(&self) -> usize {
+        1 + self.rest.len()
+    }
+
+    /// The level at site `i`.
+    pub fn site(&self, i: usize) -> u32 {
+        if i == 0 { self.first } else { self.rest[i - 1] }
+    }
+
+    /// The levels at each site, in site order.
+    pub fn site_levels(&self) -> impl Iterator<Item = u32> + '_ {
+        std::iter::once(self.first).chain(self.rest.iter().copied())
+    }
+
+    /// The level at the depot (0 without one).
+    pub fn depot(&self) -> u32 {
+        self.depot
+    }
+
+    /// True for the one level of a scenario without sites or depot.
+    pub fn is_single(&self) -> bool {
+        self.rest.is_empty() && self.depot == 0
+    }
+
+    /// All spares held at the start: every site and the depot.
+    pub fn total(&self) -> u32 {
+        self.site_levels().sum::<u32>() + self.depot
+    }
+
+    /// Add `n` to every level that is held (sites, and the depot if
+    /// `depot`); for tests and searches.
+    pub fn add(&mut self, n: u32, depot: bool) {
+        self.first += n;
+        for s in &mut self.rest {
+            *s += n;
+        }
+        if depot {
+            self.depot += n;
+        }
+    }
+}
+
+/// The one level, or the site levels separated by `/`, and `+ depot N`
+/// when the depot holds any.
+impl std::fmt::Display for Stock {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}", self.first)?;
+        for s in &self.rest {
+            write!(f, "/{s}")?;
+        }
+        if self.depot > 0 {
+            write!(f, " + depot {}", self.depot)?;
+        }
+        Ok(())
+    }
+}
+
 /// What a policy sets for one part type.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct PartPolicy {
     pub rule: Rule,
-    /// Base-stock level `S`.
-    pub stock: u32,
+    /// Base-stock levels `S` (per site and at the depot).
+    pub stock: Stock,
 }
 
 /// A maintenance-and-spares policy: one [`PartPolicy`] per part type.
@@ -192,7 +378,7 @@ impl Policy {
         self.parts
             .iter()
             .zip(&model.parts)
-            .map(|(p, t)| p.stock as f64 * t.price)
+            .map(|(p, t)| p.stock.total() as f64 * t.price)
             .sum()
     }
 
@@ -207,7 +393,12 @@ impl Policy {
                     Rule::Age(x) => format!("A{}", fmt_hours(x)),
                     Rule::Block(x) => format!("B{}", fmt_hours(x)),
                 };
-                format!("{} {} S{}", t.name, rule, p.stock)
+                let depot = if model.depot.is_some() && p.stock.depot() == 0 {
+                    " + depot 0"
+                } else {
+                    ""
+                };
+                format!("{} {} S{}{depot}", t.name, rule, p.stock)
             })
             .collect::<Vec<_>>()
             .join("; ")
@@ -252,9 +443,34 @@ impl Default for CostMeasure {
 pub struct PartSearch {
     /// Candidate rules (each with its interval).
     pub rules: Vec<Rule>,
-    /// Smallest and largest stock level, inclusive.
+    /// Smallest and largest stock level, inclusive; with sites, of the
+    /// total over the sites and the depot.
     pub stock_min: u32,
     pub stock_max: u32,
+    /// With sites: the range of each site's level and of the depot's.
+    pub locations: Option<StockRanges>,
+}
+
+impl PartSearch {
+    /// Number of stock choices (saturating).
+    pub fn stock_choices(&self) -> u128 {
+        match &self.locations {
+            None => (self.stock_max - self.stock_min + 1) as u128,
+            Some(r) => r
+                .sites
+                .iter()
+                .chain(std::iter::once(&r.depot))
+                .fold(1u128, |acc, (a, b)| acc.saturating_mul((b - a + 1) as u128)),
+        }
+    }
+}
+
+/// The stock levels a search may try at each site and at the depot
+/// (inclusive ranges; the depot's is `(0, 0)` without a depot).
+#[derive(Debug, Clone, PartialEq)]
+pub struct StockRanges {
+    pub sites: Vec<(u32, u32)>,
+    pub depot: (u32, u32),
 }
 
 /// The search space of the frontier.
@@ -275,7 +491,7 @@ impl SearchSpace {
     /// Number of policies in the space (saturating).
     pub fn size(&self) -> u128 {
         self.parts.iter().fold(1u128, |acc, p| {
-            acc.saturating_mul(p.rules.len() as u128 * (p.stock_max - p.stock_min + 1) as u128)
+            acc.saturating_mul((p.rules.len() as u128).saturating_mul(p.stock_choices()))
         })
     }
 }
@@ -288,16 +504,28 @@ pub struct Model {
     pub horizon: Hours,
     /// Downtime penalty per unit-hour down.
     pub downtime_penalty: Money,
-    /// Availability target `A*` in (0, 1].
+    /// The threshold of the target in force, in (0, 1]: the availability
+    /// target `A*`, or with [`Model::ready`] the share `q` of the horizon.
     pub target: f64,
+    /// The availability target `A*` as the scenario gives it (it may give
+    /// none when a ready-units target is in force).
+    pub availability_target: Option<f64>,
+    /// The ready-units target; when given it is the target in force.
+    pub ready: Option<ReadyTarget>,
     pub seed: u64,
     /// Default number of trials for `evaluate`.
     pub trials: u64,
     pub parts: Vec<PartType>,
     pub unit_types: Vec<UnitType>,
     pub groups: Vec<FleetGroup>,
-    /// Every unit, flattened in group order.
+    /// Every unit, flattened site by site, then in group order.
     pub units: Vec<Unit>,
+    /// At least one; a scenario without `[sites]` has one implicit site.
+    pub sites: Vec<Site>,
+    /// The central store above the sites, if any.
+    pub depot: Option<Depot>,
+    /// Lateral supply between sites, if allowed.
+    pub lateral: Option<Lateral>,
     pub policies: Vec<Policy>,
     pub search: Option<SearchSpace>,
     /// The currency label for reports.
@@ -331,24 +559,61 @@ impl Model {
         n
     }
 
-    /// Build the flattened unit list from the groups.
+    /// Build the flattened unit list from the groups: site by site (sites
+    /// in index order), and within a site group by group in file order.
+    /// Without sites (every group at site 0) this is the groups' order.
     pub fn flatten_units(unit_types: &[UnitType], groups: &[FleetGroup]) -> Vec<Unit> {
         let mut units = Vec::new();
-        for (g, group) in groups.iter().enumerate() {
-            let parts: Vec<PartId> = unit_types[group.unit_type]
-                .positions
-                .iter()
-                .map(|p| p.part)
-                .collect();
-            for i in 0..group.count {
-                units.push(Unit {
-                    group: g,
-                    index_in_group: i,
-                    parts: parts.clone(),
-                });
+        let sites = groups.iter().map(|g| g.site + 1).max().unwrap_or(1);
+        for site in 0..sites {
+            for (g, group) in groups.iter().enumerate() {
+                if group.site != site {
+                    continue;
+                }
+                let parts: Vec<PartId> = unit_types[group.unit_type]
+                    .positions
+                    .iter()
+                    .map(|p| p.part)
+                    .collect();
+                for i in 0..group.count {
+                    units.push(Unit {
+                        group: g,
+                        index_in_group: i,
+                        site,
+                        parts: parts.clone(),
+                    });
+                }
             }
         }
         units
+    }
+
+    /// Which figure the target in force is of.
+    pub fn measure(&self) -> Measure {
+        if self.ready.is_some() {
+            Measure::Readiness
+        } else {
+            Measure::Availability
+        }
+    }
+
+    /// True when the scenario names sites (so stock is per site).
+    pub fn has_sites(&self) -> bool {
+        !self.sites.iter().all(|s| s.implicit)
+    }
+
+    /// Units at each site.
+    pub fn site_units(&self) -> Vec<usize> {
+        let mut n = vec![0; self.sites.len()];
+        for u in &self.units {
+            n[u.site] += 1;
+        }
+        n
+    }
+
+    /// True when any part type is repairable.
+    pub fn has_rotables(&self) -> bool {
+        self.parts.iter().any(PartType::is_repairable)
     }
 
     /// Check that a policy respects the safety-critical limits; returns a

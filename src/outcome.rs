@@ -23,18 +23,84 @@ pub struct PartOutcome {
     pub labour_unplanned: Money,
     pub downtime_cost: Money,
     pub holding: Money,
+    /// Repairs started before the horizon (repairable part types).
+    pub repairs: u32,
+    /// Removed parts condemned (each bought anew: in `orders`).
+    pub condemned: u32,
+    /// Removed parts sent to the repair shop (their repair started or not).
+    pub repair_entries: u32,
+    /// Requests from the sites to the depot.
+    pub requests: u32,
+    /// Shipments from the depot to the sites.
+    pub shipments: u32,
+    /// Lateral transfers between sites.
+    pub laterals: u32,
+    /// Repair cost of parts removed at planned replacements.
+    pub repair_planned: Money,
+    /// Repair cost of failed parts.
+    pub repair_failed: Money,
+    /// Cost of shipments and lateral transfers.
+    pub transport_cost: Money,
+    /// Part-hours in the repair shop (waiting for a channel or under
+    /// repair) within the horizon: divided by it, the mean number in repair.
+    pub repair_hours: Hours,
+    /// Sum of the turnarounds (wait for a channel plus repair time) of the
+    /// parts sent to repair.
+    pub turnaround_hours: Hours,
+    /// Demand-hours waiting for a spare at the sites' stores (backorders x
+    /// hours).
+    pub backorder_hours: Hours,
+    /// Request-hours waiting at the depot.
+    pub depot_backorder_hours: Hours,
+    /// Spare-hours on hand at every store (the holding cost's base).
+    pub shelf_hours: Hours,
 }
 
 impl PartOutcome {
-    /// Parts, labour and holding: what is spent, without penalty or capital.
+    /// Parts, labour, holding, repair and transport: what is spent, without
+    /// penalty or capital.
     pub fn spend(&self) -> Money {
-        self.parts_cost + self.labour_planned + self.labour_unplanned + self.holding
+        // The first part's terms come first, in their first order, so a
+        // scenario without rotables or a depot adds only zeros after them.
+        self.parts_cost
+            + self.labour_planned
+            + self.labour_unplanned
+            + self.holding
+            + self.repair_planned
+            + self.repair_failed
+            + self.transport_cost
+    }
+
+    /// Repair cost, planned and failed removals.
+    pub fn repair_cost(&self) -> Money {
+        self.repair_planned + self.repair_failed
     }
 
     /// Spend plus the downtime penalty.
     pub fn total(&self) -> Money {
         self.spend() + self.downtime_cost
     }
+}
+
+/// One site's share of a trial (scenarios with sites).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct SiteOutcome {
+    /// Up unit-hours of the site's units.
+    pub up_hours: Hours,
+    /// Demands at the site that found its shelf empty.
+    pub stockouts: u32,
+    /// Lateral transfers the site gave to, and took from, other sites.
+    pub laterals_given: u32,
+    pub laterals_taken: u32,
+    /// Hours with at least the site's ready count of units up (0 without a
+    /// ready-units target).
+    pub ready_hours: Hours,
+    /// Demand-hours waiting for a spare at the site's stores (all part
+    /// types): its backorders x hours.
+    pub backorder_hours: Hours,
+    /// Hours with exactly `m` of the site's units up, `m = 0..=units`
+    /// (empty unless the trial counted units up).
+    pub units_up: Vec<Hours>,
 }
 
 /// The outcome of one trial of the whole fleet.
@@ -50,6 +116,14 @@ pub struct TrialOutcome {
     pub parts: Vec<PartOutcome>,
     /// Events the simulation handled (for speed figures).
     pub events: u64,
+    /// Share of the horizon with every site at its ready count of units
+    /// up (0 without a ready-units target).
+    pub readiness: f64,
+    /// Hours with exactly `m` units of the fleet up, `m = 0..=units` (empty
+    /// unless the trial counted units up).
+    pub units_up: Vec<Hours>,
+    /// Per site, for scenarios that name sites (else empty).
+    pub sites: Vec<SiteOutcome>,
 }
 
 impl TrialOutcome {
@@ -63,6 +137,9 @@ impl TrialOutcome {
             down_planned: 0.0,
             parts: vec![PartOutcome::default(); n_parts],
             events: 0,
+            readiness: 0.0,
+            units_up: Vec::new(),
+            sites: Vec::new(),
         }
     }
 

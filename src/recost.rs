@@ -16,7 +16,7 @@ use std::ops::Range;
 use serde_json::Value;
 
 use crate::frontier::{Costed, FrontierResult, SearchStats, VALIDATION_OFFSET, frontier_points};
-use crate::model::{CostMeasure, Model, PartPolicy, Policy, Rule};
+use crate::model::{CostMeasure, Model, PartPolicy, Policy, Rule, Stock};
 use crate::summary::Summary;
 
 /// The most policies one list may hold.
@@ -173,7 +173,7 @@ pub fn parse_policies(model: &Model, file: &str, text: &str) -> Result<Vec<Polic
             })?;
             parts.push(PartPolicy {
                 rule,
-                stock: s as u32,
+                stock: Stock::single(s as u32),
             });
         }
         let policy = Policy { name, parts };
@@ -299,7 +299,7 @@ mod tests {
             ps[0]
                 .parts
                 .iter()
-                .all(|p| p.rule == Rule::Age(5000.0) && p.stock == 1)
+                .all(|p| p.rule == Rule::Age(5000.0) && p.stock == Stock::single(1))
         );
         let bad_interval = good.replacen("5000", "-3", 1);
         let e = parse_policies(&m, "f.json", &bad_interval).unwrap_err();

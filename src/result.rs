@@ -6,8 +6,10 @@
 
 use serde::Serialize;
 
+use std::collections::BTreeMap;
+
 use crate::averages::AveragesPlan;
-use crate::model::{Model, Policy};
+use crate::model::{Measure, Model, Policy};
 use crate::summary::{AvailabilityFigures, Chance, MeanSe, Summary};
 
 /// Mean only.
@@ -28,6 +30,11 @@ pub struct CostJson {
     pub unplanned_labour: MeanSe,
     pub downtime: MeanSe,
     pub holding: MeanSe,
+    /// Repair of parts removed at planned replacements, and of failed parts.
+    pub repair_planned: MeanSe,
+    pub repair_failed: MeanSe,
+    /// Shipments from the depot and lateral transfers.
+    pub transport: MeanSe,
 }
 
 /// Counts per trial (means).
@@ -37,6 +44,66 @@ pub struct CountsJson {
     pub planned: f64,
     pub stockouts: f64,
     pub orders: f64,
+    /// Repairs started (repairable part types).
+    pub repairs: f64,
+    /// Removed parts condemned (and bought anew).
+    pub condemned: f64,
+    /// Requests from the sites to the depot.
+    pub requests: f64,
+    /// Shipments from the depot to the sites.
+    pub shipments: f64,
+    /// Lateral transfers between sites.
+    pub laterals: f64,
+}
+
+/// The ready-units target and the readiness across trials.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct ReadinessJson {
+    /// Per site (the fleet's name without sites): units that must be up.
+    pub at_least: BTreeMap<String, u32>,
+    /// The share `q` of the horizon.
+    pub share: f64,
+    /// Readiness: the share of the horizon with every site at its count.
+    #[serde(flatten)]
+    pub figures: AvailabilityFigures,
+    /// Chance that readiness is at least the share, Wilson 95 % interval.
+    pub chance: Chance,
+}
+
+/// One site's figures (means per trial).
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct SiteJson {
+    pub name: String,
+    pub units: usize,
+    /// Up unit-hours of the site's units over their scheduled unit-hours.
+    pub availability: f64,
+    /// With a ready-units target: its count, and the share of the horizon
+    /// with at least that many of its units up.
+    pub at_least: Option<u32>,
+    pub ready_share: Option<MeanSe>,
+    /// Demands at the site that found its shelf empty.
+    pub stockouts: f64,
+    /// Time-average demands waiting for a spare at the site (all part types).
+    pub backorders_mean: f64,
+    pub laterals_given: f64,
+    pub laterals_taken: f64,
+    /// Mean share of the horizon with exactly `m` of its units up, `m = 0..=units`.
+    pub units_up: Vec<f64>,
+}
+
+/// A rotable's repair loop (means per trial).
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct PipelineJson {
+    /// Parts removed: sent to repair, or condemned.
+    pub removals: f64,
+    pub repairs: f64,
+    pub condemned: f64,
+    /// Time-average number of parts in the repair shop (waiting for a
+    /// channel or under repair).
+    pub in_repair_mean: f64,
+    /// Mean turnaround of a part sent to repair, the wait for a channel
+    /// included, hours.
+    pub turnaround_mean_hours: f64,
 }
 
 /// Unit-hours down per trial by cause (means with standard errors).
@@ -53,13 +120,27 @@ pub struct PartJson {
     pub name: String,
     pub rule: String,
     pub interval: Option<f64>,
+    /// All spares held at the start (with sites: every site and the depot).
     pub stock: u32,
+    /// With sites: the level at each site and at the depot (`depot`).
+    pub stock_at: Option<BTreeMap<String, u32>>,
     pub failures: f64,
     pub planned: f64,
     pub stockouts: f64,
     pub orders: f64,
     pub down_hours: f64,
     pub cost: PartCostJson,
+    pub requests: f64,
+    pub shipments: f64,
+    pub laterals: f64,
+    /// Time-average demands waiting for a spare at the sites' stores.
+    pub backorders_mean: f64,
+    /// Time-average requests waiting at the depot.
+    pub depot_backorders_mean: f64,
+    /// Time-average spares on hand at every store.
+    pub on_hand_mean: f64,
+    /// The repair loop of a repairable part type; null for a consumable.
+    pub pipeline: Option<PipelineJson>,
 }
 
 /// One part type's cost means.
@@ -71,6 +152,9 @@ pub struct PartCostJson {
     pub unplanned_labour: f64,
     pub downtime: f64,
     pub holding: f64,
+    pub repair_planned: f64,
+    pub repair_failed: f64,
+    pub transport: f64,
 }
 
 /// Plan-on-averages figures beside the simulated ones.
@@ -96,8 +180,22 @@ pub struct EvaluateJson {
     pub units: usize,
     /// Whether each trial drew its own life parameters from their fits.
     pub parameter_uncertainty: bool,
+    /// What the target in force is of: `availability` or `readiness`.
+    pub target_measure: &'static str,
     pub availability: AvailabilityFigures,
+    /// Chance of meeting the target in force (`target` is its threshold).
     pub chance: Chance,
+    /// The availability target as the scenario gives it, and with a
+    /// ready-units target in force the chance of availability at least it.
+    pub availability_target: Option<f64>,
+    pub availability_chance: Option<Chance>,
+    /// The ready-units target and readiness; null without one.
+    pub readiness: Option<ReadinessJson>,
+    /// Mean share of the horizon with exactly `m` units of the fleet up,
+    /// `m = 0..=units` (empty if the run did not count units up).
+    pub units_up: Vec<f64>,
+    /// Per site (empty without sites).
+    pub sites: Vec<SiteJson>,
     pub cost: CostJson,
     pub initial_stock_capital: f64,
     pub counts: CountsJson,
@@ -129,8 +227,33 @@ impl EvaluateJson {
             horizon_hours: model.horizon,
             units: model.units.len(),
             parameter_uncertainty: model.parameter_uncertainty,
+            target_measure: match s.measure {
+                Measure::Availability => "availability",
+                Measure::Readiness => "readiness",
+            },
             availability: s.availability(),
             chance: s.chance(),
+            availability_target: model.availability_target,
+            availability_chance: match (s.measure, model.availability_target) {
+                (Measure::Readiness, Some(t)) => Some(s.availability_chance_at(t)),
+                _ => None,
+            },
+            readiness: match (&model.ready, s.measure) {
+                (Some(r), Measure::Readiness) => Some(ReadinessJson {
+                    at_least: model
+                        .sites
+                        .iter()
+                        .zip(&r.at_least)
+                        .map(|(site, &k)| (site.name.clone(), k))
+                        .collect(),
+                    share: s.target,
+                    figures: s.readiness(),
+                    chance: s.chance(),
+                }),
+                _ => None,
+            },
+            units_up: shares(&a.units_up, a.n(), model.horizon),
+            sites: sites(model, s),
             cost: CostJson {
                 total: ms(&a.total),
                 spend,
@@ -139,6 +262,9 @@ impl EvaluateJson {
                 unplanned_labour: ms(&a.labour_unplanned),
                 downtime: ms(&a.downtime_cost),
                 holding: ms(&a.holding),
+                repair_planned: ms(&a.repair_planned),
+                repair_failed: ms(&a.repair_failed),
+                transport: ms(&a.transport_cost),
             },
             initial_stock_capital: s.initial_stock_capital,
             counts: CountsJson {
@@ -146,6 +272,11 @@ impl EvaluateJson {
                 planned: a.planned.mean(),
                 stockouts: a.stockouts.mean(),
                 orders: a.orders.mean(),
+                repairs: a.per_part.iter().map(|m| m.repairs.mean()).sum(),
+                condemned: a.per_part.iter().map(|m| m.condemned.mean()).sum(),
+                requests: a.per_part.iter().map(|m| m.requests.mean()).sum(),
+                shipments: a.per_part.iter().map(|m| m.shipments.mean()).sum(),
+                laterals: a.per_part.iter().map(|m| m.laterals.mean()).sum(),
             },
             down_hours: DownJson {
                 waiting_for_spare: ms(&a.down_waiting),
@@ -167,7 +298,21 @@ impl EvaluateJson {
                     name: pt.name.clone(),
                     rule: pp.rule.kind().to_string(),
                     interval: pp.rule.interval(),
-                    stock: pp.stock,
+                    stock: pp.stock.total(),
+                    stock_at: stock_at(model, &pp.stock),
+                    requests: m.requests.mean(),
+                    shipments: m.shipments.mean(),
+                    laterals: m.laterals.mean(),
+                    backorders_mean: m.backorder_hours.mean() / model.horizon,
+                    depot_backorders_mean: m.depot_backorder_hours.mean() / model.horizon,
+                    on_hand_mean: m.shelf_hours.mean() / model.horizon,
+                    pipeline: pt.repair.as_ref().map(|_| PipelineJson {
+                        removals: m.repair_entries.mean() + m.condemned.mean(),
+                        repairs: m.repairs.mean(),
+                        condemned: m.condemned.mean(),
+                        in_repair_mean: m.repair_hours.mean() / model.horizon,
+                        turnaround_mean_hours: m.mean_turnaround(),
+                    }),
                     failures: m.failures.mean(),
                     planned: m.planned.mean(),
                     stockouts: m.stockouts.mean(),
@@ -180,11 +325,72 @@ impl EvaluateJson {
                         unplanned_labour: m.labour_unplanned.mean(),
                         downtime: m.downtime_cost.mean(),
                         holding: m.holding.mean(),
+                        repair_planned: m.repair_planned.mean(),
+                        repair_failed: m.repair_failed.mean(),
+                        transport: m.transport_cost.mean(),
                     },
                 })
                 .collect(),
         }
     }
+}
+
+/// Mean shares of the horizon from summed hours over `n` trials.
+fn shares(hours: &[f64], n: u64, horizon: f64) -> Vec<f64> {
+    let d = n.max(1) as f64 * horizon;
+    hours.iter().map(|h| h / d).collect()
+}
+
+/// The levels of a stock at each site and the depot, named (with sites).
+fn stock_at(model: &Model, stock: &crate::model::Stock) -> Option<BTreeMap<String, u32>> {
+    if !model.has_sites() {
+        return None;
+    }
+    let mut m: BTreeMap<String, u32> = model
+        .sites
+        .iter()
+        .zip(stock.site_levels())
+        .map(|(s, l)| (s.name.clone(), l))
+        .collect();
+    if model.depot.is_some() {
+        m.insert("depot".to_string(), stock.depot());
+    }
+    Some(m)
+}
+
+/// Per-site figures (scenarios with sites).
+fn sites(model: &Model, s: &Summary) -> Vec<SiteJson> {
+    let units = model.site_units();
+    let h = model.horizon;
+    s.acc
+        .per_site
+        .iter()
+        .zip(&model.sites)
+        .zip(&units)
+        .enumerate()
+        .map(|(i, ((m, site), &n))| {
+            let at_least = model.ready.as_ref().map(|r| r.at_least[i]);
+            SiteJson {
+                name: site.name.clone(),
+                units: n,
+                availability: if n > 0 {
+                    m.up_hours.mean() / (n as f64 * h)
+                } else {
+                    1.0
+                },
+                at_least,
+                ready_share: at_least.map(|_| MeanSe {
+                    mean: m.ready_hours.mean() / h,
+                    se: m.ready_hours.se() / h,
+                }),
+                stockouts: m.stockouts.mean(),
+                backorders_mean: m.backorder_hours.mean() / h,
+                laterals_given: m.laterals_given.mean(),
+                laterals_taken: m.laterals_taken.mean(),
+                units_up: shares(&m.units_up, s.trials(), h),
+            }
+        })
+        .collect()
 }
 
 /// One part type's rule in a frontier policy.
@@ -292,7 +498,7 @@ impl FrontierJson {
                             interval: pp.rule.interval(),
                         },
                     );
-                    stock.insert(part.name.clone(), pp.stock);
+                    stock.insert(part.name.clone(), pp.stock.total());
                 }
                 FrontierPolicyJson {
                     name: c.policy.name.clone(),

@@ -79,8 +79,39 @@ pub fn evaluate(
     target: f64,
     progress: &dyn Progress,
 ) -> Option<Summary> {
-    let sim = Simulator::new(model, policy);
-    let mut acc = Accumulator::new(model.parts.len());
+    evaluate_sim(
+        model,
+        policy,
+        Simulator::new(model, policy),
+        range,
+        target,
+        progress,
+    )
+}
+
+/// As [`evaluate`], counting units up in every trial (the hours with
+/// exactly `m` units up), as `wearout evaluate` reports them for every
+/// scenario. The other figures are the same.
+pub fn evaluate_counting_units(
+    model: &Model,
+    policy: &Policy,
+    range: Range<u64>,
+    target: f64,
+    progress: &dyn Progress,
+) -> Option<Summary> {
+    let sim = Simulator::new(model, policy).counting_units_up();
+    evaluate_sim(model, policy, sim, range, target, progress)
+}
+
+fn evaluate_sim(
+    model: &Model,
+    policy: &Policy,
+    sim: Simulator<'_>,
+    range: Range<u64>,
+    target: f64,
+    progress: &dyn Progress,
+) -> Option<Summary> {
+    let mut acc = Accumulator::for_model(model);
     let first = range.start;
     if !for_each_trial(&sim, range, progress, |_, o| acc.push(o)) {
         return None;
@@ -99,7 +130,7 @@ pub fn evaluate_on_thread(
     ws: &mut Workspace,
 ) -> Summary {
     let sim = Simulator::new(model, policy);
-    let mut acc = Accumulator::new(model.parts.len());
+    let mut acc = Accumulator::for_model(model);
     let first = range.start;
     for t in range {
         acc.push(&sim.run(t, ws));

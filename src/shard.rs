@@ -13,7 +13,7 @@
 //! # Format (version 1)
 //!
 //! ```text
-//! wearout-shard 1\n                       magic line
+//! wearout-shard 2\n                       magic line
 //! {"format":"wearout-shard",...}\n        header: one line of JSON (ShardHeader)
 //! records                                 trial-major: for each trial of first..end,
 //!                                         for each policy, one encoded TrialOutcome
@@ -26,8 +26,8 @@
 //! hours and money are raw IEEE-754 doubles, except that zeros take no
 //! bytes, and figures the simulator builds by repeated addition of one
 //! constant (parts bought, labour) or by one product or quotient (downtime
-//! penalty, availability) are rebuilt by the same arithmetic from their
-//! counts. Each rebuilt figure is checked against the real one when
+//! penalty, availability, holding from the shelf hours) are rebuilt by the
+//! same arithmetic from their counts. Each rebuilt figure is checked against the real one when
 //! written; where they differ (never seen, but cheap to guard) the raw value
 //! is stored and a flag says so.
 
@@ -40,7 +40,7 @@ use std::time::Instant;
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 
-use crate::model::{Model, PartPolicy, Policy, Rule};
+use crate::model::{Model, PartPolicy, Policy, Rule, Stock};
 use crate::outcome::{PartOutcome, TrialOutcome};
 use crate::run::{BLOCK, Progress, for_each_trial};
 use crate::sim::Simulator;
@@ -48,7 +48,7 @@ use crate::sim::Simulator;
 /// The first word of every shard file.
 pub const MAGIC: &str = "wearout-shard";
 /// The shard format this code writes and reads.
-pub const FORMAT_VERSION: u32 = 1;
+pub const FORMAT_VERSION: u32 = 2;
 /// The version of wearout that writes shards (the crate version).
 pub const TOOL_VERSION: &str = env!("CARGO_PKG_VERSION");
 const TRAILER_MAGIC: &[u8; 8] = b"WOSHEND1";
@@ -247,7 +247,14 @@ pub struct PartRecord {
     /// The interval in hours, for reading; `interval_bits` is exact.
     pub interval: Option<f64>,
     pub interval_bits: Option<String>,
+    /// The total stock (the one level without sites).
     pub stock: u32,
+    /// With sites: the level at each site, in site order.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stock_sites: Option<Vec<u32>>,
+    /// With sites: the level at the depot.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stock_depot: Option<u32>,
 }
 
 /// A policy in a shard header.
@@ -271,7 +278,11 @@ impl PolicyRecord {
                     rule: pp.rule.kind().to_string(),
                     interval: pp.rule.interval(),
                     interval_bits: pp.rule.interval().map(bits),
-                    stock: pp.stock,
+                    stock: pp.stock.total(),
+                    stock_sites: (!pp.stock.is_single() || model.has_sites())
+                        .then(|| pp.stock.site_levels().collect()),
+                    stock_depot: (!pp.stock.is_single() || model.has_sites())
+                        .then(|| pp.stock.depot()),
                 })
                 .collect(),
         }
@@ -313,10 +324,25 @@ impl PolicyRecord {
                     ));
                 }
             };
-            parts.push(PartPolicy {
-                rule,
-                stock: r.stock,
-            });
+            let stock = match (&r.stock_sites, r.stock_depot) {
+                (None, None) => Stock::single(r.stock),
+                (Some(s), Some(d)) if !s.is_empty() => Stock::at_sites(s, d),
+                _ => {
+                    return Err(format!(
+                        "policy `{}`: part type `{}` has an incomplete stock per site",
+                        self.name, r.part
+                    ));
+                }
+            };
+            if stock.sites() != model.sites.len() || stock.total() != r.stock {
+                return Err(format!(
+                    "policy `{}`: the stock of part type `{}` does not fit the scenario's {} sites",
+                    self.name,
+                    r.part,
+                    model.sites.len()
+                ));
+            }
+            parts.push(PartPolicy { rule, stock });
         }
         Ok(Policy {
             name: self.name.clone(),
@@ -334,6 +360,8 @@ pub struct CodecRecord {
     pub penalty: String,
     /// Per part type: price, planned labour, unplanned labour.
     pub parts: Vec<[String; 3]>,
+    /// Per part type: holding cost per spare-hour.
+    pub holding: Vec<String>,
 }
 
 /// Where the scenario of a run came from.
@@ -527,6 +555,8 @@ pub struct Codec {
     penalty: f64,
     /// Per part type: price, planned labour, unplanned labour.
     parts: Vec<[f64; 3]>,
+    /// Per part type: holding cost per spare-hour.
+    holding: Vec<f64>,
 }
 
 const T_AVAIL_RAW: u8 = 1;
@@ -534,6 +564,12 @@ const T_UP_ZERO: u8 = 2;
 const T_WAIT_ZERO: u8 = 4;
 const T_UNPL_ZERO: u8 = 8;
 const T_PLAN_ZERO: u8 = 16;
+/// The fleet's hours by units up follow.
+const T_UNITS_UP: u8 = 32;
+/// The readiness follows.
+const T_READY: u8 = 64;
+/// Per-site figures follow.
+const T_SITES: u8 = 128;
 
 const P_DOWN_ZERO: u8 = 1;
 const P_HOLD_ZERO: u8 = 2;
@@ -541,6 +577,9 @@ const P_COST_RAW: u8 = 4;
 const P_LP_RAW: u8 = 8;
 const P_LU_RAW: u8 = 16;
 const P_DT_RAW: u8 = 32;
+const P_BACK_ZERO: u8 = 64;
+/// The rotable, depot and lateral figures follow.
+const P_NET: u8 = 128;
 
 /// `c` added to 0 `n` times, as the simulator adds it once per event.
 fn repeated_sum(c: f64, n: u64) -> f64 {
@@ -603,6 +642,58 @@ fn put_f64(out: &mut Vec<u8>, x: f64) {
     out.extend_from_slice(&x.to_le_bytes());
 }
 
+/// A part type's rotable, depot and lateral figures: counts, then hours
+/// and money (and two slots for a holding cost not rebuilt from the shelf
+/// hours: the figure, and 1 to say it is there).
+fn net_fields(p: &PartOutcome) -> ([u32; 6], [f64; 8]) {
+    (
+        [
+            p.repairs,
+            p.condemned,
+            p.repair_entries,
+            p.requests,
+            p.shipments,
+            p.laterals,
+        ],
+        [
+            p.repair_planned,
+            p.repair_failed,
+            p.transport_cost,
+            p.repair_hours,
+            p.turnaround_hours,
+            p.depot_backorder_hours,
+            0.0,
+            0.0,
+        ],
+    )
+}
+
+/// Up to eight numbers: a byte saying which are not zero, then those.
+fn put_floats(out: &mut Vec<u8>, xs: &[f64]) {
+    debug_assert!(xs.len() <= 8);
+    let mask = xs
+        .iter()
+        .enumerate()
+        .filter(|(_, x)| !same(**x, 0.0))
+        .fold(0u8, |m, (i, _)| m | (1 << i));
+    out.push(mask);
+    for x in xs.iter().filter(|x| !same(**x, 0.0)) {
+        put_f64(out, *x);
+    }
+}
+
+/// Hours by a count (units up): the length, the entries not zero, then
+/// each as its index and value.
+fn put_hours_by_count(out: &mut Vec<u8>, hours: &[f64]) {
+    put_varint(out, hours.len() as u64);
+    let nonzero = hours.iter().filter(|x| !same(**x, 0.0)).count();
+    put_varint(out, nonzero as u64);
+    for (i, x) in hours.iter().enumerate().filter(|(_, x)| !same(**x, 0.0)) {
+        put_varint(out, i as u64);
+        put_f64(out, *x);
+    }
+}
+
 /// A byte source that counts what it consumed.
 struct Bytes<R> {
     inner: R,
@@ -636,6 +727,36 @@ impl<R: Read> Bytes<R> {
             "a count longer than 64 bits",
         ))
     }
+    fn floats(&mut self, xs: &mut [f64]) -> std::io::Result<()> {
+        let mask = self.u8()?;
+        for (i, x) in xs.iter_mut().enumerate() {
+            *x = if mask & (1 << i) != 0 {
+                self.f64()?
+            } else {
+                0.0
+            };
+        }
+        Ok(())
+    }
+
+    fn hours_by_count(&mut self) -> std::io::Result<Vec<f64>> {
+        let bad = |why: &str| std::io::Error::new(std::io::ErrorKind::InvalidData, why.to_string());
+        let len = self.varint()?;
+        let nonzero = self.varint()?;
+        if len > 1 << 24 || nonzero > len {
+            return Err(bad("a units-up count out of range"));
+        }
+        let mut v = vec![0.0; len as usize];
+        for _ in 0..nonzero {
+            let i = self.varint()?;
+            let slot = v
+                .get_mut(i as usize)
+                .ok_or_else(|| bad("a units-up index out of range"))?;
+            *slot = self.f64()?;
+        }
+        Ok(v)
+    }
+
     fn count(&mut self) -> std::io::Result<u32> {
         u32::try_from(self.varint()?)
             .map_err(|_| std::io::Error::new(std::io::ErrorKind::InvalidData, "a count past 2^32"))
@@ -653,6 +774,7 @@ impl Codec {
                 .iter()
                 .map(|p| [p.price, p.labour_planned, p.labour_unplanned])
                 .collect(),
+            holding: model.parts.iter().map(|p| p.holding_per_hour).collect(),
         }
     }
 
@@ -665,6 +787,7 @@ impl Codec {
                 .iter()
                 .map(|[a, b, c]| [bits(*a), bits(*b), bits(*c)])
                 .collect(),
+            holding: self.holding.iter().map(|h| bits(*h)).collect(),
         }
     }
 
@@ -673,10 +796,14 @@ impl Codec {
         for [a, b, c] in &r.parts {
             parts.push([unbits(a)?, unbits(b)?, unbits(c)?]);
         }
+        if r.holding.len() != parts.len() {
+            return None;
+        }
         Some(Codec {
             unit_hours: unbits(&r.unit_hours)?,
             penalty: unbits(&r.penalty)?,
             parts,
+            holding: r.holding.iter().map(|h| unbits(h)).collect::<Option<_>>()?,
         })
     }
 
@@ -700,6 +827,15 @@ impl Codec {
                 tag |= flag;
             }
         }
+        if !o.units_up.is_empty() {
+            tag |= T_UNITS_UP;
+        }
+        if !same(o.readiness, 0.0) {
+            tag |= T_READY;
+        }
+        if !o.sites.is_empty() {
+            tag |= T_SITES;
+        }
         out.push(tag);
         if tag & T_AVAIL_RAW != 0 {
             put_f64(out, o.availability);
@@ -715,13 +851,26 @@ impl Codec {
             }
         }
         put_varint(out, o.events);
-        for (p, &[price, lp, lu]) in o.parts.iter().zip(&self.parts) {
+        for ((p, &[price, lp, lu]), &rate) in o.parts.iter().zip(&self.parts).zip(&self.holding) {
             let mut tag = 0u8;
             if same(p.down_hours, 0.0) {
                 tag |= P_DOWN_ZERO;
             }
-            if same(p.holding, 0.0) {
+            if same(p.shelf_hours, 0.0) {
                 tag |= P_HOLD_ZERO;
+            }
+            if same(p.backorder_hours, 0.0) {
+                tag |= P_BACK_ZERO;
+            }
+            let mut net = net_fields(p);
+            // The simulator's holding is its shelf hours times the rate;
+            // were it not, the raw figure goes with the network fields.
+            if !same(p.shelf_hours * rate, p.holding) {
+                net.1[6] = p.holding;
+                net.1[7] = 1.0;
+            }
+            if net.0.iter().any(|&c| c != 0) || net.1.iter().any(|&x| !same(x, 0.0)) {
+                tag |= P_NET;
             }
             if !same(repeated_sum(price, u64::from(p.orders)), p.parts_cost) {
                 tag |= P_COST_RAW;
@@ -748,7 +897,16 @@ impl Codec {
                 put_f64(out, p.down_hours);
             }
             if tag & P_HOLD_ZERO == 0 {
-                put_f64(out, p.holding);
+                put_f64(out, p.shelf_hours);
+            }
+            if tag & P_BACK_ZERO == 0 {
+                put_f64(out, p.backorder_hours);
+            }
+            if tag & P_NET != 0 {
+                for c in net.0 {
+                    put_varint(out, u64::from(c));
+                }
+                put_floats(out, &net.1);
             }
             for (flag, x) in [
                 (P_COST_RAW, p.parts_cost),
@@ -759,6 +917,25 @@ impl Codec {
                 if tag & flag != 0 {
                     put_f64(out, x);
                 }
+            }
+        }
+        if tag & T_UNITS_UP != 0 {
+            put_hours_by_count(out, &o.units_up);
+        }
+        if tag & T_READY != 0 {
+            put_f64(out, o.readiness);
+        }
+        if tag & T_SITES != 0 {
+            put_varint(out, o.sites.len() as u64);
+            for site in &o.sites {
+                put_floats(
+                    out,
+                    &[site.up_hours, site.ready_hours, site.backorder_hours],
+                );
+                for c in [site.stockouts, site.laterals_given, site.laterals_taken] {
+                    put_varint(out, u64::from(c));
+                }
+                put_hours_by_count(out, &site.units_up);
             }
         }
     }
@@ -782,7 +959,7 @@ impl Codec {
         let [up_hours, down_waiting, down_unplanned, down_planned] = vals;
         let events = r.varint()?;
         let mut parts = Vec::with_capacity(self.parts.len());
-        for &[price, lp, lu] in &self.parts {
+        for (&[price, lp, lu], &rate) in self.parts.iter().zip(&self.holding) {
             let tag = r.u8()?;
             let failures = r.count()?;
             let planned = r.count()?;
@@ -798,11 +975,23 @@ impl Codec {
             } else {
                 0.0
             };
-            let holding = if tag & P_HOLD_ZERO == 0 {
+            let shelf_hours = if tag & P_HOLD_ZERO == 0 {
                 r.f64()?
             } else {
                 0.0
             };
+            let backorder_hours = if tag & P_BACK_ZERO == 0 {
+                r.f64()?
+            } else {
+                0.0
+            };
+            let (mut counts, mut floats) = ([0u32; 6], [0.0f64; 8]);
+            if tag & P_NET != 0 {
+                for c in &mut counts {
+                    *c = r.count()?;
+                }
+                r.floats(&mut floats)?;
+            }
             let parts_cost = if tag & P_COST_RAW != 0 {
                 r.f64()?
             } else {
@@ -822,6 +1011,24 @@ impl Codec {
             } else {
                 down_hours * self.penalty
             };
+            let [
+                repairs,
+                condemned,
+                repair_entries,
+                requests,
+                shipments,
+                laterals,
+            ] = counts;
+            let [
+                repair_planned,
+                repair_failed,
+                transport_cost,
+                repair_hours,
+                turnaround_hours,
+                depot_backorder_hours,
+                holding_raw,
+                raw,
+            ] = floats;
             parts.push(PartOutcome {
                 failures,
                 planned,
@@ -832,8 +1039,57 @@ impl Codec {
                 labour_planned,
                 labour_unplanned,
                 downtime_cost,
-                holding,
+                holding: if raw != 0.0 {
+                    holding_raw
+                } else {
+                    shelf_hours * rate
+                },
+                repairs,
+                condemned,
+                repair_entries,
+                requests,
+                shipments,
+                laterals,
+                repair_planned,
+                repair_failed,
+                transport_cost,
+                repair_hours,
+                turnaround_hours,
+                backorder_hours,
+                depot_backorder_hours,
+                shelf_hours,
             });
+        }
+        let units_up = if tag & T_UNITS_UP != 0 {
+            r.hours_by_count()?
+        } else {
+            Vec::new()
+        };
+        let readiness = if tag & T_READY != 0 { r.f64()? } else { 0.0 };
+        let mut sites = Vec::new();
+        if tag & T_SITES != 0 {
+            let n = r.varint()?;
+            if n > 1 << 20 {
+                return Err(std::io::Error::new(
+                    std::io::ErrorKind::InvalidData,
+                    "too many sites",
+                ));
+            }
+            for _ in 0..n {
+                let mut f = [0.0; 3];
+                r.floats(&mut f)?;
+                let (stockouts, laterals_given, laterals_taken) =
+                    (r.count()?, r.count()?, r.count()?);
+                sites.push(crate::outcome::SiteOutcome {
+                    up_hours: f[0],
+                    stockouts,
+                    laterals_given,
+                    laterals_taken,
+                    ready_hours: f[1],
+                    backorder_hours: f[2],
+                    units_up: r.hours_by_count()?,
+                });
+            }
         }
         Ok(TrialOutcome {
             availability: avail_raw.unwrap_or_else(|| availability_of(up_hours, self.unit_hours)),
@@ -843,6 +1099,9 @@ impl Codec {
             down_planned,
             parts,
             events,
+            readiness,
+            units_up,
+            sites,
         })
     }
 
@@ -919,7 +1178,14 @@ pub fn write_shard<W: Write>(
     w.put(json.as_bytes())?;
     w.put(b"\n")?;
     let head_bytes = w.bytes;
-    let sims: Vec<Simulator<'_>> = policies.iter().map(|p| Simulator::new(model, p)).collect();
+    // An evaluate run counts units up, as `wearout evaluate` does.
+    let sims: Vec<Simulator<'_>> = policies
+        .iter()
+        .map(|p| match header.kind {
+            RunKind::Evaluate => Simulator::new(model, p).counting_units_up(),
+            RunKind::FrontierValidation => Simulator::new(model, p),
+        })
+        .collect();
     let mut outcomes: Vec<Vec<TrialOutcome>> = vec![Vec::new(); policies.len()];
     let mut buf: Vec<u8> = Vec::new();
     let mut records = 0u64;
@@ -1442,7 +1708,7 @@ impl Merger {
         let mut accs: Vec<crate::summary::Accumulator> = self
             .policies
             .iter()
-            .map(|_| crate::summary::Accumulator::new(self.model.parts.len()))
+            .map(|_| crate::summary::Accumulator::for_model(&self.model))
             .collect();
         let mut seconds = 0.0;
         let mut next = h.run_first;
@@ -1591,6 +1857,7 @@ mod tests {
             unit_hours: 3.0 * 1000.0,
             penalty: 0.3,
             parts: vec![[0.1, 7.0, 3.3], [1e300, 0.0, f64::MIN_POSITIVE]],
+            holding: vec![0.25, 3.0],
         };
         let mut o = TrialOutcome::zeroed(2);
         o.up_hours = 2900.123;
@@ -1608,7 +1875,10 @@ mod tests {
             labour_planned: 14.0,
             labour_unplanned: repeated_sum(3.3, 3),
             downtime_cost: 12.25 * 0.3,
-            holding: 1.0 / 3.0,
+            shelf_hours: 4.0 / 3.0,
+            holding: 4.0 / 3.0 * 0.25,
+            backorder_hours: 2.5,
+            ..PartOutcome::default()
         };
         // A part whose figures do not come from the simulator's arithmetic:
         // stored raw.
@@ -1623,7 +1893,33 @@ mod tests {
             labour_unplanned: 0.5,
             downtime_cost: 7.0,
             holding: 0.0,
+            shelf_hours: 5.0,
+            repairs: 4,
+            condemned: 1,
+            repair_entries: 5,
+            requests: 9,
+            shipments: 8,
+            laterals: 1,
+            repair_planned: 100.0,
+            transport_cost: -0.0,
+            turnaround_hours: 1e-300,
+            depot_backorder_hours: 17.5,
+            ..PartOutcome::default()
         };
+        o.readiness = 0.875;
+        o.units_up = vec![0.0, 0.0, 250.0, 0.0, 2750.0];
+        o.sites = vec![
+            crate::outcome::SiteOutcome {
+                up_hours: 1900.0,
+                stockouts: 3,
+                laterals_given: 0,
+                laterals_taken: 1,
+                ready_hours: 1000.0,
+                backorder_hours: 12.5,
+                units_up: vec![10.0, 0.0, 990.0],
+            },
+            crate::outcome::SiteOutcome::default(),
+        ];
         let mut v = Vec::new();
         codec.encode(&o, &mut v);
         let (back, used) = codec.decode_slice(&v).unwrap();

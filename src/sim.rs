@@ -22,19 +22,41 @@
 //! replacement that nothing can interrupt is finished within its demand's
 //! event, and an arrival nobody waits for is booked when its store is next
 //! used.
+//!
+//! Sites, a depot, lateral supply and rotables (MODEL.md, "Second part")
+//! add stores and flows, each drawn from its own keyed stream: one store per
+//! site and part type and one per part type at the depot, requests to the
+//! depot and its shipments, a repair shop per repairable part type (whose
+//! completion is fixed when a part enters it, so it needs no events), and
+//! lateral transfers bound to the failure they serve. A scenario without
+//! them has one store per part type, indexed by part, and runs exactly the
+//! first part's arithmetic: the extra flows are behind per-simulator
+//! switches. The moments units go down and come up are logged when the
+//! trial counts units up (`ready`).
+
+mod ready;
 
 use std::collections::VecDeque;
 
 use crate::dist::{Hours, Life};
 use crate::model::{InitialAge, Model, PartPolicy, Policy, Rule};
-use crate::outcome::TrialOutcome;
+use crate::outcome::{SiteOutcome, TrialOutcome};
 use crate::stream::{Stream, StreamKey, TrialSeed};
+use ready::Change;
 
-/// Event classes in the order they are handled at the same instant.
+/// Event classes in the order they are handled at the same instant
+/// (MODEL.md, "Same instant, extended"). Arrivals at stores (classes 1 and
+/// 3) are kept apart, in [`Arrivals`]; the others are unit events.
 const CLASS_COMPLETION: u64 = 0;
-// Class 1: spare arrivals, which are kept apart (see `Arrivals`).
-const CLASS_FAILURE: u64 = 2;
-const CLASS_DUE: u64 = 3;
+/// Arrivals at the depot (repairs ending, purchases); it ships at once.
+const CLASS_DEPOT: u64 = 1;
+/// A lateral transfer reaching the failed unit it serves.
+const CLASS_LATERAL: u64 = 2;
+/// Arrivals at sites: depot shipments, or without a depot the site's own
+/// repairs and purchases.
+const CLASS_SITE: u64 = 3;
+const CLASS_FAILURE: u64 = 4;
+const CLASS_DUE: u64 = 5;
 
 /// Lead times drawn at a time per part type (the last batch of a trial is
 /// partly unused: at most `LEAD_BATCH - 1` spare draws per part type).
@@ -109,9 +131,11 @@ impl Tourney {
     }
 }
 
-/// The next awaited spare arrival of each part type (infinite while no
-/// demand for it waits), and the earliest of them. Part types are few, so
-/// a change rescans them all.
+/// The next awaited spare arrival of each store (infinite while no demand
+/// for it waits), and the earliest of them. Stores are numbered in their
+/// same-instant order (the depot's before the sites', a site's in part-type
+/// order), so ties go to the lower index; without sites or depot a store
+/// is its part type. Stores are few, so a change rescans them all.
 #[derive(Debug, Default)]
 struct Arrivals {
     at: Vec<Hours>,
@@ -170,6 +194,8 @@ enum Status {
     Grounded,
     /// Being replaced (planned or not).
     Replacing { planned: bool },
+    /// Failed, a spare on its way from another site (lateral transfer).
+    Transfer,
 }
 
 #[derive(Debug, Clone)]
@@ -208,34 +234,95 @@ struct UnitState {
     /// The unit's next own event: its position, and (while up) its reading.
     next_pos: usize,
     next_op: Hours,
+    /// Its site, and its site's first store (its store of part type `p` is
+    /// `store_base + p`).
+    site: usize,
+    store_base: usize,
+    /// Number of its positions waiting for a lateral transfer.
+    transfers: u32,
 }
 
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Default)]
 struct Store {
     on_hand: u32,
     /// Waiting failures (and grounded parts): (unit, position), first come first served.
     failures: VecDeque<(u32, u32)>,
     /// Waiting planned replacements.
     planned: VecDeque<(u32, u32)>,
+    /// At the depot: the sites whose requests wait, first come first served.
+    requests: VecDeque<u32>,
     /// Time integral of spares on hand, up to `last`.
     area: f64,
     last: Hours,
-    leads: Stream,
-    /// Lead times drawn ahead from `leads`, in order, and the next to use.
-    lead_buf: [Hours; LEAD_BATCH],
-    lead_next: usize,
+    /// Time integral of the demands (at the depot: requests) waiting, kept
+    /// as the sum of their leaving times minus their joining times (those
+    /// still waiting leave at the horizon).
+    back_area: f64,
     /// Arrival times of the orders on their way that arrive before the
     /// horizon, latest first, and of equal times the later order first (so
     /// the earliest order arrives first). While no demand waits, an arrival
     /// only puts a spare on the shelf, so it is booked when the store is
     /// next used (or at the horizon); while demands wait, the earliest is an
-    /// event (in [`Arrivals`]).
+    /// event (in [`Arrivals`]). Orders here are anything on its way to
+    /// the store: purchases, repaired parts, shipments from the depot.
     pending: Vec<Hours>,
-    /// Orders placed in this trial.
-    orders: u64,
     /// Orders that arrive at or after the horizon (so the orders on their
     /// way are these and `pending`).
     beyond: u64,
+    /// Store `p` (the first site's, or with a depot the depot's store of
+    /// part type `p`) also keeps part type `p`'s purchases, whichever store
+    /// places them: unused in the others.
+    supply: Supply,
+}
+
+impl Store {
+    /// True while demands (or requests) wait for a spare here; only a depot
+    /// store (`NET`) has requests.
+    #[inline(always)]
+    fn awaited<const NET: bool>(&self) -> bool {
+        !(self.failures.is_empty() && self.planned.is_empty() && (!NET || self.requests.is_empty()))
+    }
+
+    /// Demands (or requests) waiting.
+    fn waiting(&self) -> usize {
+        self.failures.len() + self.planned.len() + self.requests.len()
+    }
+}
+
+/// One part type's purchases, whichever store places them: its lead-time
+/// stream (draw `k` for its `k`-th order), drawn ahead in batches.
+#[derive(Debug, Clone)]
+struct Supply {
+    leads: Stream,
+    /// Lead times drawn ahead from `leads`, in order, and the next to use.
+    lead_buf: [Hours; LEAD_BATCH],
+    lead_next: usize,
+    /// Orders placed in this trial.
+    orders: u64,
+}
+
+impl Default for Supply {
+    /// A placeholder: every trial sets the stream of the stores that use it.
+    fn default() -> Self {
+        Supply {
+            leads: TrialSeed::new(0, 0).stream(StreamKey::LeadTimes { part: 0 }),
+            lead_buf: [0.0; LEAD_BATCH],
+            lead_next: LEAD_BATCH,
+            orders: 0,
+        }
+    }
+}
+
+/// One repairable part type's repair shop and condemnation draws.
+#[derive(Debug, Clone)]
+struct Shop {
+    times: Stream,
+    condemn: Stream,
+    /// With limited channels, the time each channel is next free (empty:
+    /// unlimited). A part entering starts at the earliest free time (the
+    /// lowest channel on ties), so with first come first served its
+    /// completion is known when it enters.
+    free: Vec<Hours>,
 }
 
 /// Which part types take part in a run. Positions of an inactive part type
@@ -277,6 +364,15 @@ pub struct Workspace {
     units: Vec<UnitState>,
     pos: Vec<Pos>,
     stores: Vec<Store>,
+    /// Per part type (empty for a consumable's shop, never used).
+    shops: Vec<Shop>,
+    /// Per site: the transport times from the depot.
+    transport: Vec<Stream>,
+    lateral: Vec<Stream>,
+    /// Moments units go down and come up (when counting units up).
+    changes: Vec<Change>,
+    /// Part types of the last trial (its first stores carry their purchases).
+    supply_parts: usize,
     /// The trial's drawn lives per part type (parameter uncertainty).
     trial_lives: Vec<Life>,
 }
@@ -296,7 +392,12 @@ impl Workspace {
     pub fn draw_counts(&self) -> DrawCounts {
         DrawCounts {
             lives: self.pos.iter().map(|p| p.drawn).collect(),
-            leads: self.stores.iter().map(|s| s.orders as u32).collect(),
+            leads: self
+                .stores
+                .iter()
+                .take(self.supply_parts)
+                .map(|s| s.supply.orders as u32)
+                .collect(),
         }
     }
 }
@@ -315,6 +416,22 @@ pub struct Simulator<'m> {
     /// Handle every completion and every arrival as an event of its own
     /// (no shortcuts); for tests that check the shortcuts change nothing.
     all_events: bool,
+    /// Per part type: true when a demand only places one purchase order to
+    /// its own store (a consumable, no depot, no lateral supply): the first
+    /// part's flow.
+    simple: Vec<bool>,
+    /// Per part type: true for a repairable part type.
+    repairable: Vec<bool>,
+    depot: bool,
+    lateral: bool,
+    /// Log the moments units go down and come up, and count units up.
+    counts_up: bool,
+    /// Sites, a depot, lateral supply or a repairable part type.
+    net: bool,
+    /// Stores at the depot (0 or the part types), before the sites' stores.
+    depot_stores: usize,
+    /// Units at each site.
+    site_units: Vec<u32>,
 }
 
 impl<'m> Simulator<'m> {
@@ -326,6 +443,10 @@ impl<'m> Simulator<'m> {
     /// A simulator with an explicit per-part policy and active set.
     pub fn with_parts(model: &'m Model, policy: &[PartPolicy], active: ActiveParts) -> Self {
         assert_eq!(policy.len(), model.parts.len(), "one entry per part type");
+        assert!(
+            policy.iter().all(|p| p.stock.sites() == model.sites.len()),
+            "one stock level per site"
+        );
         Simulator {
             model,
             policy: policy.to_vec(),
@@ -338,7 +459,35 @@ impl<'m> Simulator<'m> {
                         .is_some_and(|u| u.is_uncertain())
                 }),
             all_events: false,
+            simple: model
+                .parts
+                .iter()
+                .map(|p| p.repair.is_none() && model.depot.is_none() && model.lateral.is_none())
+                .collect(),
+            repairable: model.parts.iter().map(|p| p.repair.is_some()).collect(),
+            depot: model.depot.is_some(),
+            lateral: model.lateral.is_some(),
+            counts_up: model.ready.is_some() || model.has_sites(),
+            net: model.has_sites()
+                || model.depot.is_some()
+                || model.lateral.is_some()
+                || model.has_rotables(),
+            depot_stores: if model.depot.is_some() {
+                model.parts.len()
+            } else {
+                0
+            },
+            site_units: model.site_units().iter().map(|&n| n as u32).collect(),
         }
+    }
+
+    /// The same simulator, also counting units up in every trial: the hours
+    /// with exactly `m` units up, fleet-wide and per site. On by itself for
+    /// a scenario with sites or a ready-units target; `wearout evaluate`
+    /// asks for it on every scenario. It changes no other result.
+    pub fn counting_units_up(mut self) -> Self {
+        self.counts_up = true;
+        self
     }
 
     /// The same simulator without the event loop's two shortcuts: every
@@ -394,9 +543,37 @@ impl<'m> Simulator<'m> {
 
     /// Run a trial with the given streams and per-part lives.
     pub fn run_seeded(&self, seed: &TrialSeed, lives: &[Life], ws: &mut Workspace) -> TrialOutcome {
-        let mut run = Run::start(self, seed, lives, ws, false);
-        run.event_loop();
-        run.finish()
+        self.dispatch(seed, lives, ws, false)
+    }
+
+    /// Run one trial with the loop compiled for this simulator's switches,
+    /// so a scenario without sites, depot, lateral supply or rotables (and
+    /// not counting units up) runs the first part's loop with no test of
+    /// them at all.
+    fn dispatch(
+        &self,
+        seed: &TrialSeed,
+        lives: &[Life],
+        ws: &mut Workspace,
+        check: bool,
+    ) -> TrialOutcome {
+        fn go<const NET: bool, const UP: bool>(
+            sim: &Simulator<'_>,
+            seed: &TrialSeed,
+            lives: &[Life],
+            ws: &mut Workspace,
+            check: bool,
+        ) -> TrialOutcome {
+            let mut run = Run::<NET, UP>::start(sim, seed, lives, ws, check);
+            run.event_loop();
+            run.finish()
+        }
+        match (self.net, self.counts_up) {
+            (false, false) => go::<false, false>(self, seed, lives, ws, check),
+            (false, true) => go::<false, true>(self, seed, lives, ws, check),
+            (true, false) => go::<true, false>(self, seed, lives, ws, check),
+            (true, true) => go::<true, true>(self, seed, lives, ws, check),
+        }
     }
 
     /// Draw the random numbers trial `trial` uses, and nothing else: the
@@ -448,11 +625,7 @@ impl<'m> Simulator<'m> {
         let seed = TrialSeed::new(self.model.seed, trial);
         let mut lives = std::mem::take(&mut ws.trial_lives);
         self.trial_lives(&seed, &mut lives);
-        let out = {
-            let mut run = Run::start(self, &seed, &lives, ws, true);
-            run.event_loop();
-            run.finish()
-        };
+        let out = self.dispatch(&seed, &lives, ws, true);
         ws.trial_lives = lives;
         out
     }
@@ -470,10 +643,17 @@ struct View<'a> {
     units: &'a mut [UnitState],
     pos: &'a mut [Pos],
     stores: &'a mut [Store],
+    shops: &'a mut [Shop],
+    transport: &'a mut [Stream],
+    lateral: &'a mut [Stream],
+    changes: &'a mut Vec<Change>,
 }
 
-/// One trial in progress.
-struct Run<'a, 'm> {
+/// One trial in progress. `NET`: the scenario has sites, a depot, lateral
+/// supply or rotables; `UP`: the trial counts units up. Both are fixed per
+/// simulator, so the loop is compiled once for each and a scenario without
+/// them pays for none of their tests.
+struct Run<'a, 'm, const NET: bool, const UP: bool> {
     sim: &'a Simulator<'m>,
     lives: &'a [Life],
     ws: View<'a>,
@@ -494,7 +674,7 @@ fn draw_initial_age(spec: &InitialAge, index_in_group: usize, ages: &mut Stream)
     }
 }
 
-impl<'a, 'm> Run<'a, 'm> {
+impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
     fn start(
         sim: &'a Simulator<'m>,
         seed: &TrialSeed,
@@ -505,41 +685,61 @@ impl<'a, 'm> Run<'a, 'm> {
         let model = sim.model;
         let n_parts = model.parts.len();
         ws.tourney.reset(model.units.len());
-        ws.arrivals.reset(n_parts);
         ws.units.clear();
         ws.pos.clear();
         ws.key_at.clear();
         ws.done_at.clear();
         ws.cause.clear();
-        ws.stores.truncate(n_parts);
-        for (p, pp) in sim.policy.iter().enumerate() {
-            let leads = seed.stream(StreamKey::LeadTimes { part: p as u32 });
-            if let Some(s) = ws.stores.get_mut(p) {
-                s.on_hand = pp.stock;
-                s.failures.clear();
-                s.planned.clear();
-                s.area = 0.0;
-                s.last = 0.0;
-                s.leads = leads;
-                s.lead_next = LEAD_BATCH;
-                s.orders = 0;
-                s.pending.clear();
-                s.beyond = 0;
+        let n_sites = model.sites.len();
+        let depot_stores = sim.depot_stores;
+        let n_stores = depot_stores + n_sites * n_parts;
+        ws.arrivals.reset(n_stores);
+        ws.stores.resize_with(n_stores, Store::default);
+        for (i, s) in ws.stores.iter_mut().enumerate() {
+            // Depot stores first, then site by site in part-type order.
+            s.on_hand = if i < depot_stores {
+                sim.policy[i].stock.depot()
             } else {
-                ws.stores.push(Store {
-                    on_hand: pp.stock,
-                    failures: VecDeque::new(),
-                    planned: VecDeque::new(),
-                    area: 0.0,
-                    last: 0.0,
-                    leads,
-                    lead_buf: [0.0; LEAD_BATCH],
-                    lead_next: LEAD_BATCH,
-                    orders: 0,
-                    pending: Vec::new(),
-                    beyond: 0,
+                let k = i - depot_stores;
+                sim.policy[k % n_parts].stock.site(k / n_parts)
+            };
+            s.failures.clear();
+            s.planned.clear();
+            s.requests.clear();
+            s.area = 0.0;
+            s.last = 0.0;
+            s.back_area = 0.0;
+            s.pending.clear();
+            s.beyond = 0;
+        }
+        for (p, s) in ws.stores.iter_mut().take(n_parts).enumerate() {
+            s.supply.leads = seed.stream(StreamKey::LeadTimes { part: p as u32 });
+            s.supply.lead_next = LEAD_BATCH;
+            s.supply.orders = 0;
+        }
+        ws.supply_parts = n_parts;
+        ws.shops.clear();
+        ws.transport.clear();
+        ws.lateral.clear();
+        ws.changes.clear();
+        if sim.repairable.iter().any(|&r| r) {
+            for (p, pt) in model.parts.iter().enumerate() {
+                let channels = pt.repair.as_ref().and_then(|r| r.channels).unwrap_or(0);
+                ws.shops.push(Shop {
+                    times: seed.stream(StreamKey::RepairTimes { part: p as u32 }),
+                    condemn: seed.stream(StreamKey::Condemn { part: p as u32 }),
+                    free: vec![0.0; channels as usize],
                 });
             }
+        }
+        if sim.depot {
+            for site in 0..n_sites {
+                ws.transport
+                    .push(seed.stream(StreamKey::Transport { site: site as u32 }));
+            }
+        }
+        if sim.lateral {
+            ws.lateral.push(seed.stream(StreamKey::Lateral));
         }
         let mut ages = seed.stream(StreamKey::InitialAges);
         for (u, unit) in model.units.iter().enumerate() {
@@ -589,9 +789,15 @@ impl<'a, 'm> Run<'a, 'm> {
                 replacing: 0,
                 next_pos: 0,
                 next_op: f64::INFINITY,
+                site: unit.site,
+                store_base: depot_stores + unit.site * n_parts,
+                transfers: 0,
             });
         }
-        let out = TrialOutcome::zeroed(n_parts);
+        let mut out = TrialOutcome::zeroed(n_parts);
+        if model.has_sites() {
+            out.sites = vec![SiteOutcome::default(); n_sites];
+        }
         let ws = View {
             tourney: &mut ws.tourney,
             arrivals: &mut ws.arrivals,
@@ -601,6 +807,10 @@ impl<'a, 'm> Run<'a, 'm> {
             units: &mut ws.units,
             pos: &mut ws.pos,
             stores: &mut ws.stores,
+            shops: &mut ws.shops,
+            transport: &mut ws.transport,
+            lateral: &mut ws.lateral,
+            changes: &mut ws.changes,
         };
         let mut run = Run {
             sim,
@@ -625,7 +835,9 @@ impl<'a, 'm> Run<'a, 'm> {
         let (fail, due, cause) = match status {
             Status::Working => (p.fail_op, p.due_op.min(p.limit_op), CAUSE_NONE),
             Status::WaitingPlanned => (p.fail_op, p.limit_op, CAUSE_NONE),
-            Status::Failed | Status::Grounded => (f64::INFINITY, f64::INFINITY, CAUSE_WAITING),
+            Status::Failed | Status::Grounded | Status::Transfer => {
+                (f64::INFINITY, f64::INFINITY, CAUSE_WAITING)
+            }
             Status::Replacing { planned } => (
                 f64::INFINITY,
                 f64::INFINITY,
@@ -649,17 +861,37 @@ impl<'a, 'm> Run<'a, 'm> {
         let unit = &self.ws.units[u];
         let (first, n) = (unit.first_pos, unit.n_pos);
         if unit.holding_down > 0 {
-            if unit.replacing == 0 {
+            let transfers = if NET { unit.transfers } else { 0 };
+            if unit.replacing + transfers == 0 {
                 // Down and only waiting for spares: no event of its own.
                 self.ws.tourney.set(u, f64::INFINITY, CLASS_COMPLETION);
                 return;
             }
             let mut best = f64::INFINITY;
             let mut best_j = 0;
-            for (j, &d) in self.ws.done_at[first..first + n].iter().enumerate() {
-                if d < best {
-                    best = d;
-                    best_j = j;
+            let mut class = CLASS_COMPLETION;
+            if transfers == 0 {
+                for (j, &d) in self.ws.done_at[first..first + n].iter().enumerate() {
+                    if d < best {
+                        best = d;
+                        best_j = j;
+                    }
+                }
+            } else {
+                // Completions and lateral transfers: at the same instant a
+                // completion first, then lower positions first.
+                for j in 0..n {
+                    let d = self.ws.done_at[first + j];
+                    let c = if self.ws.pos[first + j].status == Status::Transfer {
+                        CLASS_LATERAL
+                    } else {
+                        CLASS_COMPLETION
+                    };
+                    if d < best || (d == best && d.is_finite() && c < class) {
+                        best = d;
+                        best_j = j;
+                        class = c;
+                    }
                 }
             }
             self.ws.units[u].next_pos = best_j;
@@ -668,7 +900,7 @@ impl<'a, 'm> Run<'a, 'm> {
             } else {
                 f64::INFINITY
             };
-            self.ws.tourney.set(u, time, CLASS_COMPLETION);
+            self.ws.tourney.set(u, time, class);
             return;
         }
         // The least key: the earliest reading, a failure before a due at the
@@ -751,22 +983,46 @@ impl<'a, 'm> Run<'a, 'm> {
         self.out.parts[part].down_hours += dt;
     }
 
-    fn touch_store(&mut self, part: usize, now: Hours) {
-        let s = &mut self.ws.stores[part];
+    /// The store of part type `part` at unit `u`'s site.
+    #[inline(always)]
+    fn store_of(&self, u: usize, part: usize) -> usize {
+        if NET {
+            self.ws.units[u].store_base + part
+        } else {
+            part
+        }
+    }
+
+    fn touch_store(&mut self, store: usize, now: Hours) {
+        let s = &mut self.ws.stores[store];
         s.area += s.on_hand as f64 * (now - s.last);
         s.last = now;
     }
 
     /// A unit goes from up to down or gains another reason to stay down.
     /// The caller reschedules the unit once its positions are set.
-    fn hold_down(&mut self, u: usize, j: usize) {
-        self.ws.units[u].holding_down += 1;
-        self.ws.units[u].held_sum += j;
+    #[inline(always)]
+    fn hold_down(&mut self, u: usize, j: usize, now: Hours) {
+        let unit = &mut self.ws.units[u];
+        if UP && unit.holding_down == 0 {
+            ready::log(
+                self.ws.changes,
+                Change {
+                    time: now,
+                    site: unit.site as u32,
+                    delta: -1,
+                },
+            );
+        }
+        unit.holding_down += 1;
+        unit.held_sum += j;
     }
 
-    /// Place one resupply order for `part` at `now`.
-    fn order(&mut self, part: usize, now: Hours) {
-        let s = &mut self.ws.stores[part];
+    /// The lead time of `part`'s next purchase order (whichever store
+    /// places it: the `k`-th order takes the `k`-th draw).
+    #[inline(always)]
+    fn lead_time(&mut self, part: usize) -> Hours {
+        let s = &mut self.ws.stores[part].supply;
         s.orders += 1;
         if s.lead_next == LEAD_BATCH {
             // Independent draws overlap when made together; the k-th order
@@ -779,15 +1035,27 @@ impl<'a, 'm> Run<'a, 'm> {
         }
         let lead = s.lead_buf[s.lead_next];
         s.lead_next += 1;
+        lead
+    }
+
+    /// Place one purchase order for `part` at `now`, arriving at `store`.
+    #[inline(always)]
+    fn order(&mut self, part: usize, store: usize, now: Hours) {
+        let lead = self.lead_time(part);
         let po = &mut self.out.parts[part];
         po.orders += 1;
         po.parts_cost += self.sim.model.parts[part].price;
-        let time = now + lead;
+        self.send(store, now + lead);
+    }
+
+    /// A spare is on its way to `store` and arrives at `time`.
+    #[inline(always)]
+    fn send(&mut self, store: usize, time: Hours) {
         if time < self.horizon {
             // Keep the list latest first. This order is the latest placed,
             // so it goes before every arrival at or before its own time. The
             // list holds a few orders, so one insertion-sort step is cheapest.
-            let pending = &mut self.ws.stores[part].pending;
+            let pending = &mut self.ws.stores[store].pending;
             let mut i = pending.len();
             pending.push(time);
             while i > 0 && pending[i - 1] <= time {
@@ -796,24 +1064,22 @@ impl<'a, 'm> Run<'a, 'm> {
             }
             pending[i] = time;
             let earliest = i + 1 == pending.len();
-            let s = &self.ws.stores[part];
-            if earliest && (!(s.failures.is_empty() && s.planned.is_empty()) || self.sim.all_events)
-            {
+            if earliest && (self.ws.stores[store].awaited::<NET>() || self.sim.all_events) {
                 // It is now the earliest awaited arrival.
-                self.refresh_arrival(part);
+                self.refresh_arrival(store);
             }
         } else {
-            self.ws.stores[part].beyond += 1;
+            self.ws.stores[store].beyond += 1;
         }
     }
 
-    /// Book the arrivals of `part` up to and including `now` (an arrival
+    /// Book the arrivals of `store` up to and including `now` (an arrival
     /// comes before a failure or a due at the same instant). Only called
-    /// while no demand for `part` waits, so each arrival puts a spare on the
-    /// shelf.
+    /// while no demand for the store waits, so each arrival puts a spare on
+    /// the shelf.
     #[inline]
-    fn settle(&mut self, part: usize, now: Hours) {
-        let s = &mut self.ws.stores[part];
+    fn settle(&mut self, store: usize, now: Hours) {
+        let s = &mut self.ws.stores[store];
         while let Some(&t) = s.pending.last() {
             if t > now {
                 break;
@@ -825,17 +1091,17 @@ impl<'a, 'm> Run<'a, 'm> {
         }
     }
 
-    /// Make `part`'s next arrival an event while demands for it wait, and
-    /// take it out otherwise.
-    #[inline]
-    fn refresh_arrival(&mut self, part: usize) {
-        let s = &self.ws.stores[part];
-        let awaited = !(s.failures.is_empty() && s.planned.is_empty()) || self.sim.all_events;
+    /// Make the store's next arrival an event while demands for it wait,
+    /// and take it out otherwise.
+    #[inline(always)]
+    fn refresh_arrival(&mut self, store: usize) {
+        let s = &self.ws.stores[store];
+        let awaited = s.awaited::<NET>() || self.sim.all_events;
         let t = match s.pending.last() {
             Some(&t) if awaited => t,
             _ => f64::INFINITY,
         };
-        self.ws.arrivals.set(part, t);
+        self.ws.arrivals.set(store, t);
     }
 
     /// Start the replacement of position `j` of unit `u` (its spare in
@@ -892,12 +1158,22 @@ impl<'a, 'm> Run<'a, 'm> {
                 self.check_invariants();
             }
             let (t, class, u) = self.ws.tourney.top();
-            // An arrival at the same instant comes after a completion and
-            // before a failure or a due (the classes' order).
-            let (ta, part) = self.ws.arrivals.first;
-            if ta < t || (ta == t && ta.is_finite() && class != CLASS_COMPLETION) {
+            // An arrival at the same instant goes by its class: at the depot
+            // after completions, at a site after lateral transfers too, and
+            // before failures and dues.
+            let (ta, store) = self.ws.arrivals.first;
+            let at_depot = NET && store < self.sim.depot_stores;
+            if ta < t
+                || (ta == t
+                    && ta.is_finite()
+                    && if at_depot { CLASS_DEPOT } else { CLASS_SITE } < class)
+            {
                 self.out.events += 1;
-                self.on_arrival(part, ta);
+                if at_depot {
+                    self.on_depot_arrival(store, ta);
+                } else {
+                    self.on_arrival(store, ta);
+                }
                 continue;
             }
             if !t.is_finite() {
@@ -907,6 +1183,10 @@ impl<'a, 'm> Run<'a, 'm> {
             let j = self.ws.units[u].next_pos;
             if class == CLASS_COMPLETION {
                 self.on_completion(u, j, t);
+                continue;
+            }
+            if NET && class == CLASS_LATERAL {
+                self.on_transfer(u, j, t);
                 continue;
             }
             self.advance_unit(u, t);
@@ -923,25 +1203,64 @@ impl<'a, 'm> Run<'a, 'm> {
         }
     }
 
-    /// Assert the model's invariants (used by tests through `run_checked`).
+    /// Assert the model's invariants (used by tests through `run_checked`):
+    /// the stock identities of MODEL.md at every store, and the hold counts.
     fn check_invariants(&self) {
-        for (p, s) in self.ws.stores.iter().enumerate() {
-            let waiting = (s.failures.len() + s.planned.len()) as i64;
+        let model = self.sim.model;
+        let n_parts = model.parts.len();
+        let ds = self.sim.depot_stores;
+        for (i, s) in self.ws.stores.iter().enumerate() {
             let on_order = (s.pending.len() as u64 + s.beyond) as i64;
-            let lhs = s.on_hand as i64 + on_order - waiting;
-            assert_eq!(lhs, self.sim.policy[p].stock as i64, "stock identity");
+            let failures = s.failures.len() as i64;
+            let planned = s.planned.len() as i64;
             assert!(
-                s.on_hand == 0 || waiting == 0,
-                "spare on the shelf while demands wait"
+                s.on_hand == 0 || !s.awaited::<NET>(),
+                "spare on the shelf while demands wait (store {i})"
             );
+            if i < ds {
+                // Depot: on hand + on order (+ in repair) - requests waiting
+                // = S_0 (rotables: less the planned demands that have asked
+                // but not yet removed their part).
+                let part = i;
+                let mut level = self.sim.policy[part].stock.depot() as i64;
+                if self.sim.repairable[part] {
+                    for site in 0..model.sites.len() {
+                        level -= self.ws.stores[ds + site * n_parts + part].planned.len() as i64;
+                    }
+                }
+                let lhs = s.on_hand as i64 + on_order - s.requests.len() as i64;
+                assert_eq!(lhs, level, "depot stock identity, part {part}");
+                assert!(s.failures.is_empty() && s.planned.is_empty());
+                continue;
+            }
+            let (site, part) = ((i - ds) / n_parts, (i - ds) % n_parts);
+            let level = self.sim.policy[part].stock.site(site) as i64;
+            assert!(s.requests.is_empty());
+            let lhs = if self.sim.depot {
+                // On hand + in transit from the depot + requests waiting
+                // there - demands waiting here.
+                let asked = self.ws.stores[part]
+                    .requests
+                    .iter()
+                    .filter(|&&r| r as usize == site)
+                    .count() as i64;
+                s.on_hand as i64 + on_order + asked - failures - planned
+            } else if self.sim.repairable[part] {
+                // On hand + in repair + on order - failures waiting (a
+                // waiting planned demand's part is still fitted).
+                s.on_hand as i64 + on_order - failures
+            } else {
+                s.on_hand as i64 + on_order - failures - planned
+            };
+            assert_eq!(lhs, level, "stock identity, site {site}, part {part}");
         }
         for unit in self.ws.units.iter() {
-            let (mut held, mut held_sum, mut replacing) = (0, 0, 0);
+            let (mut held, mut held_sum, mut replacing, mut transfers) = (0, 0, 0, 0);
             for j in 0..unit.n_pos {
                 let status = self.ws.pos[unit.first_pos + j].status;
                 if matches!(
                     status,
-                    Status::Failed | Status::Grounded | Status::Replacing { .. }
+                    Status::Failed | Status::Grounded | Status::Replacing { .. } | Status::Transfer
                 ) {
                     held += 1;
                     held_sum += j;
@@ -949,11 +1268,24 @@ impl<'a, 'm> Run<'a, 'm> {
                 if matches!(status, Status::Replacing { .. }) {
                     replacing += 1;
                 }
+                if status == Status::Transfer {
+                    transfers += 1;
+                }
             }
             assert_eq!(held, unit.holding_down, "hold count");
             assert_eq!(held_sum, unit.held_sum, "held positions");
             assert_eq!(replacing, unit.replacing, "replacement count");
+            assert_eq!(transfers, unit.transfers, "transfer count");
         }
+        // Every unit-hour up to each unit's last update is up or down: the
+        // operating clocks and the down-time books add up to those times.
+        let up: f64 = self.ws.units.iter().map(|u| u.op).sum();
+        let booked: f64 = self.ws.units.iter().map(|u| u.last).sum();
+        let down = self.out.down_hours();
+        assert!(
+            (up + down - booked).abs() <= 1e-9 * booked.max(1.0),
+            "unit-hours: up {up} + down {down} != {booked}"
+        );
     }
 
     fn on_failure(&mut self, u: usize, j: usize, now: Hours) {
@@ -961,11 +1293,16 @@ impl<'a, 'm> Run<'a, 'm> {
         let part = self.ws.pos[idx].part;
         self.out.parts[part].failures += 1;
         let was = self.ws.pos[idx].status;
-        self.hold_down(u, j);
+        self.hold_down(u, j, now);
         if was == Status::WaitingPlanned {
             // The waiting planned demand becomes a failure: no new order, no
-            // second stock-out; it joins the waiting failures now.
+            // second stock-out; it joins the waiting failures now. A
+            // repairable part is removed at once, failed.
             self.join_failures(u, j, part, Status::Failed, now);
+            if NET && self.sim.repairable[part] {
+                let store = self.ws.units[u].store_base + part;
+                self.remove(part, store, true, now);
+            }
             return;
         }
         self.demand(u, j, idx, part, false, now);
@@ -976,9 +1313,14 @@ impl<'a, 'm> Run<'a, 'm> {
         let part = self.ws.pos[idx].part;
         if self.ws.pos[idx].status == Status::WaitingPlanned {
             // A safety-critical part reached its hard limit while waiting:
-            // the unit is held down until a spare comes.
-            self.hold_down(u, j);
+            // the unit is held down until a spare comes. A repairable part
+            // is removed now (a planned removal: it has not failed).
+            self.hold_down(u, j, now);
             self.join_failures(u, j, part, Status::Grounded, now);
+            if NET && self.sim.repairable[part] {
+                let store = self.ws.units[u].store_base + part;
+                self.remove(part, store, false, now);
+            }
             return;
         }
         self.demand(u, j, idx, part, true, now);
@@ -990,7 +1332,7 @@ impl<'a, 'm> Run<'a, 'm> {
     /// failures, with `status`, and the unit's next event is set.
     fn join_failures(&mut self, u: usize, j: usize, part: usize, status: Status, now: Hours) {
         self.ws.units[u].waiting_planned -= 1;
-        let store = &mut self.ws.stores[part];
+        let store = &mut self.ws.stores[self.store_of(u, part)];
         store
             .planned
             .retain(|&(a, b)| (a as usize, b as usize) != (u, j));
@@ -1000,43 +1342,267 @@ impl<'a, 'm> Run<'a, 'm> {
     }
 
     /// A new demand for a spare from position `j` of unit `u` (a failure,
-    /// or a planned replacement falling due): one order at once, then the
-    /// spare on the shelf if there is one, else a place in the queue. A
-    /// failure's unit is already held down by the caller.
+    /// or a planned replacement falling due) at its site's store: its
+    /// resupply at once, then the spare on the shelf if there is one, else
+    /// a place in the queue. A failure's unit is already held down by the
+    /// caller.
     fn demand(&mut self, u: usize, j: usize, idx: usize, part: usize, planned: bool, now: Hours) {
+        let store = self.store_of(u, part);
         // Arrivals up to this instant come first; the new order cannot be
         // among them.
-        if self.ws.stores[part].failures.is_empty() && self.ws.stores[part].planned.is_empty() {
-            self.settle(part, now);
+        if !self.ws.stores[store].awaited::<NET>() {
+            self.settle(store, now);
         }
-        self.order(part, now);
-        if self.ws.stores[part].on_hand > 0 {
-            self.touch_store(part, now);
-            self.ws.stores[part].on_hand -= 1;
+        if NET && !self.sim.simple[part] {
+            self.network_demand(u, j, idx, part, store, planned, now);
+            return;
+        }
+        // The first part's flow: one purchase order to this store.
+        self.order(part, store, now);
+        if self.ws.stores[store].on_hand > 0 {
+            self.touch_store(store, now);
+            self.ws.stores[store].on_hand -= 1;
             if planned {
-                self.hold_down(u, j);
+                self.hold_down(u, j, now);
             }
             self.start_work(u, j, planned, now);
             return;
-        } else {
-            self.out.parts[part].stockouts += 1;
-            let store = &mut self.ws.stores[part];
-            if planned {
-                store.planned.push_back((u as u32, j as u32));
-                self.ws.units[u].waiting_planned += 1;
-                self.set_status(idx, Status::WaitingPlanned);
-            } else {
-                store.failures.push_back((u as u32, j as u32));
-                self.set_status(idx, Status::Failed);
-            }
-            self.refresh_arrival(part);
         }
+        self.stockout(u, part);
+        self.wait(u, j, idx, store, planned, now);
         self.schedule_unit(u, now);
+    }
+
+    /// Count a demand of unit `u` for `part` that found its shelf empty.
+    #[inline(always)]
+    fn stockout(&mut self, u: usize, part: usize) {
+        self.out.parts[part].stockouts += 1;
+        if NET && let Some(site) = self.out.sites.get_mut(self.ws.units[u].site) {
+            site.stockouts += 1;
+        }
+    }
+
+    /// Position `j` of unit `u` joins the queue of `store` (failures or
+    /// planned replacements), and the store's next arrival is awaited.
+    #[inline(always)]
+    fn wait(&mut self, u: usize, j: usize, idx: usize, store: usize, planned: bool, now: Hours) {
+        let s = &mut self.ws.stores[store];
+        s.back_area -= now;
+        if planned {
+            s.planned.push_back((u as u32, j as u32));
+            self.ws.units[u].waiting_planned += 1;
+            self.set_status(idx, Status::WaitingPlanned);
+        } else {
+            s.failures.push_back((u as u32, j as u32));
+            self.set_status(idx, Status::Failed);
+        }
+        self.refresh_arrival(store);
+    }
+
+    /// A demand with a depot, a repairable part or lateral supply: decide
+    /// where the spare comes from (its own shelf, another site's, or the
+    /// queue), then place the resupply for the store the spare came from,
+    /// and remove a repairable part that comes out now.
+    #[allow(clippy::too_many_arguments)]
+    fn network_demand(
+        &mut self,
+        u: usize,
+        j: usize,
+        idx: usize,
+        part: usize,
+        store: usize,
+        planned: bool,
+        now: Hours,
+    ) {
+        let site = self.ws.units[u].site;
+        let repairable = self.sim.repairable[part];
+        if self.ws.stores[store].on_hand > 0 {
+            self.touch_store(store, now);
+            self.ws.stores[store].on_hand -= 1;
+            self.resupply(part, site, now);
+            if planned {
+                self.hold_down(u, j, now);
+            }
+            // A failed part comes out now; a planned one as its
+            // replacement starts, which is now.
+            if repairable {
+                self.remove(part, store, !planned, now);
+            }
+            self.start_work(u, j, planned, now);
+            return;
+        }
+        self.stockout(u, part);
+        if !planned
+            && self.sim.lateral
+            && let Some(giver) = self.giver(part, site, now)
+        {
+            let from = self.sim.depot_stores + giver * self.sim.model.parts.len() + part;
+            self.touch_store(from, now);
+            self.ws.stores[from].on_hand -= 1;
+            self.resupply(part, giver, now);
+            if repairable {
+                self.remove(part, from, true, now);
+            }
+            let Some(lateral) = &self.sim.model.lateral else {
+                return;
+            };
+            let time = now + lateral.transfer.sample(&mut self.ws.lateral[0]);
+            let po = &mut self.out.parts[part];
+            po.laterals += 1;
+            po.transport_cost += lateral.cost_per_transfer;
+            if let Some(s) = self.out.sites.get_mut(site) {
+                s.laterals_taken += 1;
+            }
+            if let Some(s) = self.out.sites.get_mut(giver) {
+                s.laterals_given += 1;
+            }
+            self.ws.units[u].transfers += 1;
+            self.set_status(idx, Status::Transfer);
+            self.ws.done_at[idx] = time;
+            self.schedule_unit(u, now);
+            return;
+        }
+        self.resupply(part, site, now);
+        if repairable && !planned {
+            self.remove(part, store, true, now);
+        }
+        self.wait(u, j, idx, store, planned, now);
+        self.schedule_unit(u, now);
+    }
+
+    /// The site other than `site` with the most spares of `part` on hand
+    /// (ties: the lower site), if any has one.
+    fn giver(&mut self, part: usize, site: usize, now: Hours) -> Option<usize> {
+        let n_parts = self.sim.model.parts.len();
+        let mut best: Option<(u32, usize)> = None;
+        for g in 0..self.sim.model.sites.len() {
+            if g == site {
+                continue;
+            }
+            let store = self.sim.depot_stores + g * n_parts + part;
+            if !self.ws.stores[store].awaited::<NET>() {
+                self.settle(store, now);
+            }
+            let on_hand = self.ws.stores[store].on_hand;
+            if on_hand > 0 && best.is_none_or(|(b, _)| on_hand > b) {
+                best = Some((on_hand, g));
+            }
+        }
+        best.map(|(_, g)| g)
+    }
+
+    /// One demand's resupply for the store of `site`: a request to the
+    /// depot, or without one a purchase order for a consumable (a
+    /// repairable part's removal brings its spare back instead).
+    fn resupply(&mut self, part: usize, site: usize, now: Hours) {
+        if self.sim.depot {
+            self.request(part, site, now);
+        } else if !self.sim.repairable[part] {
+            let store = self.sim.depot_stores + site * self.sim.model.parts.len() + part;
+            self.order(part, store, now);
+        }
+    }
+
+    /// A request from `site` to the depot for `part`: the depot buys a
+    /// consumable one for one, and ships a spare at once if it has one,
+    /// else the request waits (first come first served across sites).
+    fn request(&mut self, part: usize, site: usize, now: Hours) {
+        self.out.parts[part].requests += 1;
+        let depot = part;
+        if !self.ws.stores[depot].awaited::<NET>() {
+            self.settle(depot, now);
+        }
+        if !self.sim.repairable[part] {
+            self.order(part, depot, now);
+        }
+        if self.ws.stores[depot].on_hand > 0 {
+            self.touch_store(depot, now);
+            self.ws.stores[depot].on_hand -= 1;
+            self.ship(part, site, now);
+        } else {
+            let s = &mut self.ws.stores[depot];
+            s.back_area -= now;
+            s.requests.push_back(site as u32);
+            self.refresh_arrival(depot);
+        }
+    }
+
+    /// Ship a spare of `part` from the depot to `site`.
+    fn ship(&mut self, part: usize, site: usize, now: Hours) {
+        let Some(depot) = &self.sim.model.depot else {
+            return;
+        };
+        let time = now + depot.transport[site].sample(&mut self.ws.transport[site]);
+        let po = &mut self.out.parts[part];
+        po.shipments += 1;
+        po.transport_cost += depot.cost_per_shipment;
+        let store = self.sim.depot_stores + site * self.sim.model.parts.len() + part;
+        self.send(store, time);
+    }
+
+    /// A repairable part comes out (`failed`, or at a planned replacement):
+    /// one draw decides whether it is condemned (a purchase order) or
+    /// repaired; either way it returns to the depot, or without one to
+    /// `site_store`.
+    fn remove(&mut self, part: usize, site_store: usize, failed: bool, now: Hours) {
+        let Some(repair) = &self.sim.model.parts[part].repair else {
+            return;
+        };
+        let dest = if self.sim.depot { part } else { site_store };
+        let shop = &mut self.ws.shops[part];
+        let chance = if failed {
+            repair.condemn_failed
+        } else {
+            repair.condemn_planned
+        };
+        if crate::dist::open_uniform(&mut shop.condemn) < chance {
+            self.out.parts[part].condemned += 1;
+            self.order(part, dest, now);
+            return;
+        }
+        let time = repair.time.sample(&mut shop.times);
+        let start = if shop.free.is_empty() {
+            now
+        } else {
+            // The channel free first (the lowest on ties) takes it.
+            let mut k = 0;
+            for (c, &f) in shop.free.iter().enumerate() {
+                if f < shop.free[k] {
+                    k = c;
+                }
+            }
+            let start = shop.free[k].max(now);
+            shop.free[k] = start + time;
+            start
+        };
+        let done = start + time;
+        let h = self.horizon;
+        let po = &mut self.out.parts[part];
+        po.repair_entries += 1;
+        po.turnaround_hours += done - now;
+        po.repair_hours += done.min(h) - now;
+        if start < h {
+            po.repairs += 1;
+            if failed {
+                po.repair_failed += repair.cost_failed;
+            } else {
+                po.repair_planned += repair.cost_planned;
+            }
+        }
+        self.send(dest, done);
     }
 
     fn on_completion(&mut self, u: usize, j: usize, now: Hours) {
         self.advance_unit(u, now);
         self.fit_new_part(u, j, now);
+    }
+
+    /// A lateral transfer reaches the failed position it serves: its
+    /// unplanned replacement starts.
+    fn on_transfer(&mut self, u: usize, j: usize, now: Hours) {
+        self.advance_unit(u, now);
+        self.ws.units[u].transfers -= 1;
+        self.start_work(u, j, false, now);
     }
 
     /// Fit a new part in position `j` of unit `u` at `now` (the unit's books
@@ -1056,20 +1622,32 @@ impl<'a, 'm> Run<'a, 'm> {
         p.due_op = rule.due_at(op, 0.0).unwrap_or(f64::INFINITY);
         p.limit_op = limit.map_or(f64::INFINITY, |l| op + l);
         self.set_status(idx, Status::Working);
-        self.ws.units[u].holding_down -= 1;
-        self.ws.units[u].held_sum -= j;
-        self.ws.units[u].replacing -= 1;
+        let unit = &mut self.ws.units[u];
+        unit.holding_down -= 1;
+        unit.held_sum -= j;
+        unit.replacing -= 1;
+        if UP && unit.holding_down == 0 {
+            ready::log(
+                self.ws.changes,
+                Change {
+                    time: now,
+                    site: unit.site as u32,
+                    delta: 1,
+                },
+            );
+        }
         self.schedule_unit(u, now);
     }
 
-    /// The earliest order of `part` arrives while demands for it wait: it
-    /// serves the first waiting failure, else the first waiting planned
-    /// replacement.
-    fn on_arrival(&mut self, part: usize, now: Hours) {
-        self.ws.stores[part].pending.pop();
-        self.touch_store(part, now);
-        let store = &mut self.ws.stores[part];
-        if let Some((u, j)) = store.failures.pop_front() {
+    /// The earliest order of a site's store arrives while demands for it
+    /// wait: it serves the first waiting failure, else the first waiting
+    /// planned replacement.
+    fn on_arrival(&mut self, store: usize, now: Hours) {
+        self.ws.stores[store].pending.pop();
+        self.touch_store(store, now);
+        let s = &mut self.ws.stores[store];
+        if let Some((u, j)) = s.failures.pop_front() {
+            s.back_area += now;
             let (u, j) = (u as usize, j as usize);
             self.advance_unit(u, now);
             let idx = self.ws.units[u].first_pos + j;
@@ -1077,14 +1655,37 @@ impl<'a, 'm> Run<'a, 'm> {
             // The unit is already held down by this position; the hold passes
             // from waiting to the replacement work.
             self.start_work(u, j, planned, now);
-        } else if let Some((u, j)) = store.planned.pop_front() {
+        } else if let Some((u, j)) = s.planned.pop_front() {
+            s.back_area += now;
             let (u, j) = (u as usize, j as usize);
             self.ws.units[u].waiting_planned -= 1;
             self.advance_unit(u, now);
-            self.hold_down(u, j);
+            self.hold_down(u, j, now);
+            if NET {
+                let part = self.ws.pos[self.ws.units[u].first_pos + j].part;
+                if self.sim.repairable[part] {
+                    // The planned replacement starts: its part comes out now.
+                    self.remove(part, store, false, now);
+                }
+            }
             self.start_work(u, j, true, now);
         } else {
-            store.on_hand += 1;
+            s.on_hand += 1;
+        }
+        self.refresh_arrival(store);
+    }
+
+    /// The earliest order of the depot's store of `part` arrives while
+    /// requests wait: it is shipped to the first.
+    fn on_depot_arrival(&mut self, part: usize, now: Hours) {
+        self.ws.stores[part].pending.pop();
+        self.touch_store(part, now);
+        let s = &mut self.ws.stores[part];
+        if let Some(site) = s.requests.pop_front() {
+            s.back_area += now;
+            self.ship(part, site as usize, now);
+        } else {
+            s.on_hand += 1;
         }
         self.refresh_arrival(part);
     }
@@ -1095,14 +1696,37 @@ impl<'a, 'm> Run<'a, 'm> {
             self.advance_unit(u, h);
         }
         let model = self.sim.model;
-        for p in 0..model.parts.len() {
+        let n_parts = model.parts.len();
+        let ds = self.sim.depot_stores;
+        for store in 0..self.ws.stores.len() {
             // Orders still on their way all arrive before the horizon, and
             // none is awaited (an awaited one would have been an event).
-            self.settle(p, h);
-            self.touch_store(p, h);
-            let pt = &model.parts[p];
-            let po = &mut self.out.parts[p];
-            po.holding = self.ws.stores[p].area * pt.holding_per_hour;
+            self.settle(store, h);
+            self.touch_store(store, h);
+            let s = &self.ws.stores[store];
+            // Demands still waiting leave at the horizon.
+            let back = s.back_area + s.waiting() as f64 * h;
+            let (area, part) = (
+                s.area,
+                if store < ds {
+                    store
+                } else {
+                    (store - ds) % n_parts
+                },
+            );
+            let po = &mut self.out.parts[part];
+            po.shelf_hours += area;
+            if store < ds {
+                po.depot_backorder_hours += back;
+            } else {
+                po.backorder_hours += back;
+                if NET && let Some(site) = self.out.sites.get_mut((store - ds) / n_parts) {
+                    site.backorder_hours += back;
+                }
+            }
+        }
+        for (pt, po) in model.parts.iter().zip(self.out.parts.iter_mut()) {
+            po.holding = po.shelf_hours * pt.holding_per_hour;
             po.downtime_cost = po.down_hours * model.downtime_penalty;
         }
         let unit_hours = model.units.len() as f64 * h;
@@ -1115,6 +1739,59 @@ impl<'a, 'm> Run<'a, 'm> {
         } else {
             1.0
         };
+        if NET {
+            for unit in self.ws.units.iter() {
+                if let Some(s) = self.out.sites.get_mut(unit.site) {
+                    s.up_hours += unit.op;
+                }
+            }
+        }
+        if UP {
+            self.count_units_up();
+        }
         self.out
+    }
+
+    /// The hours with exactly `m` units up (fleet-wide and per site), each
+    /// site's hours at its ready count, and the readiness.
+    fn count_units_up(&mut self) {
+        let sim = self.sim;
+        let mut fleet = vec![0.0; sim.site_units.iter().sum::<u32>() as usize + 1];
+        let per_site = !self.out.sites.is_empty();
+        let mut sites: Vec<Vec<Hours>> = if per_site {
+            sim.site_units
+                .iter()
+                .map(|&n| vec![0.0; n as usize + 1])
+                .collect()
+        } else {
+            Vec::new()
+        };
+        let at_least = sim.model.ready.as_ref().map(|r| &r.at_least[..]);
+        let mut site_ready = if per_site && at_least.is_some() {
+            vec![0.0; sim.site_units.len()]
+        } else {
+            Vec::new()
+        };
+        let ready = ready::sweep(
+            self.ws.changes,
+            self.horizon,
+            &sim.site_units,
+            at_least,
+            ready::Counts {
+                fleet: &mut fleet,
+                sites: &mut sites,
+                site_ready: &mut site_ready,
+            },
+        );
+        self.out.units_up = fleet;
+        self.out.readiness = if at_least.is_some() {
+            ready / self.horizon
+        } else {
+            0.0
+        };
+        for (i, s) in self.out.sites.iter_mut().enumerate() {
+            s.units_up = std::mem::take(&mut sites[i]);
+            s.ready_hours = site_ready.get(i).copied().unwrap_or(0.0);
+        }
     }
 }

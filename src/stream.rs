@@ -26,6 +26,17 @@ pub enum StreamKey {
     LeadTimes { part: u32 },
     /// Per-trial draws of uncertain life parameters of one part type.
     Parameters { part: u32 },
+    /// Repair times of one repairable part type (draw `k` for the `k`-th
+    /// part sent to its repair shop).
+    RepairTimes { part: u32 },
+    /// Condemnation draws of one repairable part type (draw `k`, a
+    /// uniform, for its `k`-th removal).
+    Condemn { part: u32 },
+    /// Transport times from the depot to one site (draw `k` for its `k`-th
+    /// shipment).
+    Transport { site: u32 },
+    /// Lateral transfer times (draw `k` for the `k`-th transfer).
+    Lateral,
 }
 
 impl StreamKey {
@@ -37,6 +48,10 @@ impl StreamKey {
             }
             StreamKey::LeadTimes { part } => (3 << 60) | part as u64,
             StreamKey::Parameters { part } => (4 << 60) | part as u64,
+            StreamKey::RepairTimes { part } => (5 << 60) | part as u64,
+            StreamKey::Condemn { part } => (6 << 60) | part as u64,
+            StreamKey::Transport { site } => (7 << 60) | site as u64,
+            StreamKey::Lateral => 8 << 60,
         }
     }
 }

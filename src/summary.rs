@@ -1,12 +1,14 @@
 //! Summaries across trials: means with standard errors, percentiles, the
-//! chance of meeting the availability target with its Wilson interval.
+//! chance of meeting the target in force (availability, or readiness by
+//! ready units) with its Wilson interval, the hours by units up, per-site
+//! and rotable figures.
 //!
 //! Owns: the statistics of a set of trial outcomes, always folded in trial
 //! order so a summary is bit-for-bit the same however the trials were run.
 //! May use: `outcome`, `model`. No I/O.
 
-use crate::model::{CostBasis, CostMeasure, CostStatistic, Model, Money, Policy};
-use crate::outcome::TrialOutcome;
+use crate::model::{CostBasis, CostMeasure, CostStatistic, Measure, Model, Money, Policy};
+use crate::outcome::{SiteOutcome, TrialOutcome};
 
 /// Running mean and variance (Welford 1962), folded in a fixed order.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
@@ -128,13 +130,78 @@ pub struct PartMoments {
     pub downtime_cost: Moments,
     pub holding: Moments,
     pub total: Moments,
+    pub repairs: Moments,
+    pub condemned: Moments,
+    pub repair_entries: Moments,
+    pub requests: Moments,
+    pub shipments: Moments,
+    pub laterals: Moments,
+    pub repair_planned: Moments,
+    pub repair_failed: Moments,
+    pub transport_cost: Moments,
+    pub repair_hours: Moments,
+    pub turnaround_hours: Moments,
+    pub backorder_hours: Moments,
+    pub depot_backorder_hours: Moments,
+    pub shelf_hours: Moments,
+}
+
+impl PartMoments {
+    /// Mean turnaround of a part sent to repair (the wait for a channel
+    /// included): all turnarounds over all parts sent, across trials.
+    pub fn mean_turnaround(&self) -> f64 {
+        let n = self.repair_entries.mean();
+        if n > 0.0 {
+            self.turnaround_hours.mean() / n
+        } else {
+            0.0
+        }
+    }
+}
+
+/// Running sums of one site's figures.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct SiteMoments {
+    pub up_hours: Moments,
+    pub stockouts: Moments,
+    pub laterals_given: Moments,
+    pub laterals_taken: Moments,
+    pub ready_hours: Moments,
+    pub backorder_hours: Moments,
+    /// Sum over trials of the hours with exactly `m` units up.
+    pub units_up: Vec<f64>,
+}
+
+impl SiteMoments {
+    fn push(&mut self, s: &SiteOutcome) {
+        self.up_hours.push(s.up_hours);
+        self.stockouts.push(s.stockouts as f64);
+        self.laterals_given.push(s.laterals_given as f64);
+        self.laterals_taken.push(s.laterals_taken as f64);
+        self.ready_hours.push(s.ready_hours);
+        self.backorder_hours.push(s.backorder_hours);
+        add_hours(&mut self.units_up, &s.units_up);
+    }
+}
+
+/// Add hours by units up into running sums.
+fn add_hours(sum: &mut Vec<f64>, hours: &[f64]) {
+    if sum.len() < hours.len() {
+        sum.resize(hours.len(), 0.0);
+    }
+    for (s, h) in sum.iter_mut().zip(hours) {
+        *s += h;
+    }
 }
 
 /// Everything kept across trials: moments of every figure, and three
-/// numbers per trial (availability, total cost, spend) for percentiles,
-/// chances and paired comparisons.
+/// numbers per trial (availability, total cost, spend; and the readiness
+/// under a ready-units target) for percentiles, chances and paired
+/// comparisons.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Accumulator {
+    /// Keep each trial's readiness (a ready-units target is in force).
+    pub ready: bool,
     pub availability: Moments,
     pub down_waiting: Moments,
     pub down_unplanned: Moments,
@@ -150,13 +217,24 @@ pub struct Accumulator {
     pub holding: Moments,
     pub total: Moments,
     pub spend: Moments,
+    pub repair_planned: Moments,
+    pub repair_failed: Moments,
+    pub transport_cost: Moments,
+    pub readiness: Moments,
+    /// Sum over trials of the hours with exactly `m` units of the fleet up.
+    pub units_up: Vec<f64>,
     pub per_part: Vec<PartMoments>,
+    /// Per site (scenarios with sites).
+    pub per_site: Vec<SiteMoments>,
     /// Per trial, in trial order.
     pub trial_availability: Vec<f64>,
     /// Per trial: total cost with the downtime penalty, without capital.
     pub trial_total: Vec<f64>,
     /// Per trial: spend without capital.
     pub trial_spend: Vec<f64>,
+    /// Per trial: readiness (scenarios with a ready-units target; else
+    /// empty).
+    pub trial_readiness: Vec<f64>,
 }
 
 impl Accumulator {
@@ -165,6 +243,15 @@ impl Accumulator {
         Accumulator {
             per_part: vec![PartMoments::default(); n_parts],
             ..Default::default()
+        }
+    }
+
+    /// An empty accumulator for `model`'s trials (keeps each trial's
+    /// readiness when a ready-units target is in force).
+    pub fn for_model(model: &Model) -> Self {
+        Accumulator {
+            ready: model.ready.is_some(),
+            ..Self::new(model.parts.len())
         }
     }
 
@@ -183,6 +270,17 @@ impl Accumulator {
         self.labour_unplanned.push(o.sum(|p| p.labour_unplanned));
         self.downtime_cost.push(o.sum(|p| p.downtime_cost));
         self.holding.push(o.sum(|p| p.holding));
+        self.repair_planned.push(o.sum(|p| p.repair_planned));
+        self.repair_failed.push(o.sum(|p| p.repair_failed));
+        self.transport_cost.push(o.sum(|p| p.transport_cost));
+        self.readiness.push(o.readiness);
+        add_hours(&mut self.units_up, &o.units_up);
+        if self.per_site.len() < o.sites.len() {
+            self.per_site.resize(o.sites.len(), SiteMoments::default());
+        }
+        for (m, s) in self.per_site.iter_mut().zip(&o.sites) {
+            m.push(s);
+        }
         let total = o.total();
         let spend = o.spend();
         self.total.push(total);
@@ -199,6 +297,23 @@ impl Accumulator {
             m.downtime_cost.push(p.downtime_cost);
             m.holding.push(p.holding);
             m.total.push(p.total());
+            m.repairs.push(p.repairs as f64);
+            m.condemned.push(p.condemned as f64);
+            m.repair_entries.push(p.repair_entries as f64);
+            m.requests.push(p.requests as f64);
+            m.shipments.push(p.shipments as f64);
+            m.laterals.push(p.laterals as f64);
+            m.repair_planned.push(p.repair_planned);
+            m.repair_failed.push(p.repair_failed);
+            m.transport_cost.push(p.transport_cost);
+            m.repair_hours.push(p.repair_hours);
+            m.turnaround_hours.push(p.turnaround_hours);
+            m.backorder_hours.push(p.backorder_hours);
+            m.depot_backorder_hours.push(p.depot_backorder_hours);
+            m.shelf_hours.push(p.shelf_hours);
+        }
+        if self.ready {
+            self.trial_readiness.push(o.readiness);
         }
         self.trial_availability.push(o.availability);
         self.trial_total.push(total);
@@ -211,7 +326,21 @@ impl Accumulator {
     }
 }
 
-/// The availability distribution in figures.
+/// Mean, standard error and percentiles of a per-trial figure.
+fn figures(m: &Moments, per_trial: &[f64]) -> AvailabilityFigures {
+    let s = sorted(per_trial);
+    AvailabilityFigures {
+        mean: m.mean(),
+        se: m.se(),
+        p05: percentile_sorted(&s, 5.0),
+        p10: percentile_sorted(&s, 10.0),
+        p50: percentile_sorted(&s, 50.0),
+        p90: percentile_sorted(&s, 90.0),
+        p95: percentile_sorted(&s, 95.0),
+    }
+}
+
+/// The availability (or readiness) distribution in figures.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct AvailabilityFigures {
     pub mean: f64,
@@ -229,7 +358,10 @@ pub struct Summary {
     pub policy: Policy,
     pub first_trial: u64,
     pub acc: Accumulator,
+    /// The threshold of the target in force.
     pub target: f64,
+    /// Which per-trial figure the target is of.
+    pub measure: Measure,
     pub initial_stock_capital: Money,
 }
 
@@ -246,6 +378,11 @@ impl Summary {
             policy: policy.clone(),
             first_trial,
             initial_stock_capital: policy.initial_stock_capital(model),
+            measure: if acc.ready {
+                model.measure()
+            } else {
+                Measure::Availability
+            },
             acc,
             target,
         }
@@ -258,20 +395,37 @@ impl Summary {
 
     /// Availability mean, standard error and percentiles.
     pub fn availability(&self) -> AvailabilityFigures {
-        let s = sorted(&self.acc.trial_availability);
-        AvailabilityFigures {
-            mean: self.acc.availability.mean(),
-            se: self.acc.availability.se(),
-            p05: percentile_sorted(&s, 5.0),
-            p10: percentile_sorted(&s, 10.0),
-            p50: percentile_sorted(&s, 50.0),
-            p90: percentile_sorted(&s, 90.0),
-            p95: percentile_sorted(&s, 95.0),
+        figures(&self.acc.availability, &self.acc.trial_availability)
+    }
+
+    /// Readiness mean, standard error and percentiles (a ready-units
+    /// target in force).
+    pub fn readiness(&self) -> AvailabilityFigures {
+        figures(&self.acc.readiness, &self.acc.trial_readiness)
+    }
+
+    /// Each trial's figure the target in force is of.
+    pub fn trial_measure(&self) -> &[f64] {
+        match self.measure {
+            Measure::Availability => &self.acc.trial_availability,
+            Measure::Readiness => &self.acc.trial_readiness,
         }
     }
 
-    /// Chance that a trial's availability is at least `target`.
+    /// Chance that a trial's figure of the target in force (availability,
+    /// or readiness) is at least `target`.
     pub fn chance_at(&self, target: f64) -> Chance {
+        let k = self
+            .trial_measure()
+            .iter()
+            .filter(|&&a| a >= target)
+            .count() as u64;
+        wilson(k, self.trials())
+    }
+
+    /// Chance that a trial's availability is at least `target`, whatever
+    /// the target in force.
+    pub fn availability_chance_at(&self, target: f64) -> Chance {
         let k = self
             .acc
             .trial_availability

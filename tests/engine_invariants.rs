@@ -20,9 +20,80 @@ fn load(name: &str) -> Model {
 /// life family.
 const MIXED: &str = include_str!("data/mixed.toml");
 
+/// Ties everywhere in three sites with a depot, lateral supply and rotables
+/// (fixed and zero times, one repair channel, condemnation chances of 0, 1
+/// and between, no stock at some places), and the same without a depot.
+const TIES_NETWORK: &str = include_str!("data/ties-network.toml");
+const TIES_SITES: &str = include_str!("data/ties-sites.toml");
+
+/// The books of units up: every hour of the horizon has one count of units
+/// up, fleet-wide and at each site, and those counts times their hours are
+/// the units' up hours (from their operating clocks); each site's up hours
+/// add up to the fleet's. (Common practice of discrete-event simulation:
+/// two independent books of one quantity.)
+fn units_up_add_up(m: &Model, o: &wearout::outcome::TrialOutcome, ctx: &str) {
+    let h = m.horizon;
+    let close = |a: f64, b: f64| (a - b).abs() <= 1e-9 * h * m.units.len() as f64;
+    assert_eq!(o.units_up.len(), m.units.len() + 1, "{ctx}");
+    assert!(
+        close(o.units_up.iter().sum(), h),
+        "{ctx}: hours by units up"
+    );
+    let up: f64 = o
+        .units_up
+        .iter()
+        .enumerate()
+        .map(|(k, x)| k as f64 * x)
+        .sum();
+    assert!(close(up, o.up_hours), "{ctx}: {up} vs {}", o.up_hours);
+    if m.has_sites() {
+        let units = m.site_units();
+        assert_eq!(o.sites.len(), m.sites.len());
+        let mut sum = 0.0;
+        for (i, s) in o.sites.iter().enumerate() {
+            assert_eq!(s.units_up.len(), units[i] + 1);
+            assert!(close(s.units_up.iter().sum(), h), "{ctx}: site {i}");
+            let up: f64 = s
+                .units_up
+                .iter()
+                .enumerate()
+                .map(|(k, x)| k as f64 * x)
+                .sum();
+            assert!(
+                close(up, s.up_hours),
+                "{ctx}: site {i}: {up} vs {}",
+                s.up_hours
+            );
+            if let Some(r) = &m.ready {
+                // Hours with at least k up, from the distribution.
+                let k = r.at_least[i] as usize;
+                let at_least: f64 = s.units_up[k..].iter().sum();
+                assert!(
+                    close(at_least, s.ready_hours),
+                    "{ctx}: site {i} ready hours"
+                );
+                // Every site ready at once is no more than any one site ready.
+                assert!(o.readiness * h <= s.ready_hours + 1e-9 * h, "{ctx}");
+            }
+            sum += s.up_hours;
+        }
+        assert!(close(sum, o.up_hours), "{ctx}: sites' up hours");
+        // The sites' backorders are the part types' at the sites' stores.
+        let by_site: f64 = o.sites.iter().map(|s| s.backorder_hours).sum();
+        let by_part: f64 = o.parts.iter().map(|p| p.backorder_hours).sum();
+        assert!(
+            close(by_site, by_part),
+            "{ctx}: backorders {by_site} vs {by_part}"
+        );
+    }
+    assert!((0.0..=1.0).contains(&o.readiness), "{ctx}");
+}
+
 #[test]
 fn every_trial_keeps_the_books() {
     let mixed = common::model(MIXED);
+    let network = common::model(TIES_NETWORK);
+    let sites = common::model(TIES_SITES);
     let cases: Vec<(Model, &str)> = vec![
         (load("b1"), "reference"),
         (load("b0"), "reference"),
@@ -30,15 +101,29 @@ fn every_trial_keeps_the_books() {
         (load("demo"), "reference"),
         (mixed.clone(), "blocky"),
         (mixed, "aged"),
+        (load("b2"), "reference"),
+        (network.clone(), "grid"),
+        (network, "aged"),
+        (sites.clone(), "grid"),
+        (sites, "aged"),
     ];
     for (m, name) in &cases {
         let sim = Simulator::new(m, m.policy(name).unwrap());
         let mut ws = Workspace::default();
         let unit_hours = m.units.len() as f64 * m.horizon;
+        let counting = Simulator::new(m, m.policy(name).unwrap()).counting_units_up();
         for t in 0..40 {
-            // run_checked asserts the stock identity and hold counts after
-            // every event.
+            // run_checked asserts the stock identities (every site and the
+            // depot), the hold counts and that every unit-hour so far is up
+            // or down, after every event.
             let o = sim.run_checked(t, &mut ws);
+            let c = counting.run_checked(t, &mut ws);
+            units_up_add_up(m, &c, &format!("{}/{name} trial {t}", m.name));
+            // Counting units up changes nothing else.
+            assert_eq!(
+                (c.availability, &c.parts, c.readiness),
+                (o.availability, &o.parts, o.readiness)
+            );
             let total = o.up_hours + o.down_hours();
             assert!(
                 (total - unit_hours).abs() <= 1e-7 * unit_hours,
@@ -139,7 +224,7 @@ fn policies_share_their_futures() {
     let m = load("b0");
     let mut rich = m.policy("reference").unwrap().clone();
     for p in &mut rich.parts {
-        p.stock += 5;
+        p.stock.add(5, false);
     }
     let base = m.policy("reference").unwrap().clone();
     let a = evaluate(&m, &base, 0..200, m.target, &Quiet).unwrap();
@@ -185,6 +270,8 @@ fn the_event_loops_shortcuts_change_no_result() {
     // model's rules; common practice for event-list optimisations.)
     let mixed = wearout::scenario::parse("mixed.toml", MIXED).expect("mixed parses");
     let ties = wearout::scenario::parse("ties.toml", TIES).expect("ties parses");
+    let network = common::model(TIES_NETWORK);
+    let sites = common::model(TIES_SITES);
     let cases = [
         (load("b1"), "reference"),
         (load("b0"), "reference"),
@@ -193,6 +280,11 @@ fn the_event_loops_shortcuts_change_no_result() {
         (mixed, "aged"),
         (ties.clone(), "grid"),
         (ties, "aged"),
+        (load("b2"), "reference"),
+        (network.clone(), "grid"),
+        (network, "aged"),
+        (sites.clone(), "grid"),
+        (sites, "aged"),
     ];
     for (m, name) in &cases {
         let p = m.policy(name).unwrap().clone();
@@ -212,16 +304,49 @@ fn the_event_loops_shortcuts_change_no_result() {
                     (y.failures, y.planned, y.stockouts, y.orders),
                     "{ctx}"
                 );
+                assert_eq!(
+                    (x.repairs, x.condemned, x.repair_entries),
+                    (y.repairs, y.condemned, y.repair_entries),
+                    "{ctx}"
+                );
+                assert_eq!(
+                    (x.requests, x.shipments, x.laterals),
+                    (y.requests, y.shipments, y.laterals),
+                    "{ctx}"
+                );
                 for (u, v) in [
                     (x.down_hours, y.down_hours),
                     (x.parts_cost, y.parts_cost),
                     (x.labour_planned, y.labour_planned),
                     (x.labour_unplanned, y.labour_unplanned),
                     (x.holding, y.holding),
+                    (x.repair_planned, y.repair_planned),
+                    (x.repair_failed, y.repair_failed),
+                    (x.transport_cost, y.transport_cost),
+                    (x.repair_hours, y.repair_hours),
+                    (x.turnaround_hours, y.turnaround_hours),
+                    (x.backorder_hours, y.backorder_hours),
+                    (x.depot_backorder_hours, y.depot_backorder_hours),
+                    (x.shelf_hours, y.shelf_hours),
                 ] {
                     assert!(same_sum(u, v), "{ctx}: {u} vs {v}");
                 }
             }
+            for (x, y) in a.sites.iter().zip(&b.sites) {
+                assert_eq!(
+                    (x.stockouts, x.laterals_given, x.laterals_taken),
+                    (y.stockouts, y.laterals_given, y.laterals_taken),
+                    "{ctx}"
+                );
+                assert!(same_sum(x.up_hours, y.up_hours), "{ctx}");
+                assert!(same_sum(x.ready_hours, y.ready_hours), "{ctx}");
+                assert!(same_sum(x.backorder_hours, y.backorder_hours), "{ctx}");
+                for (u, v) in x.units_up.iter().zip(&y.units_up) {
+                    assert!(same_sum(*u, *v), "{ctx}: {u} vs {v}");
+                }
+            }
+            assert_eq!(a.sites.len(), b.sites.len());
+            assert!(same_sum(a.readiness, b.readiness), "{ctx}");
             for (u, v) in [
                 (a.availability, b.availability),
                 (a.down_waiting, b.down_waiting),

@@ -126,6 +126,23 @@ const WORDS: &[&str] = &[
     "shape",
     "scale",
     "location",
+    "site",
+    "sites",
+    "depot",
+    "every_site",
+    "north",
+    "one",
+    "repair",
+    "channels",
+    "condemn",
+    "failed",
+    "planned",
+    "at_least",
+    "share",
+    "transport",
+    "transfer",
+    "lateral",
+    "ready_units",
     "",
 ];
 
@@ -163,6 +180,29 @@ const SCENARIO_SNIPPETS: &[&str] = &[
     "statistic = \"p99.9999\"",
     "interval_fraction_range = { from = 0.000001, to = 1000, step = 0.000001 }",
     "holding = { per_spare_hour = 1e300 }",
+    // Sites, a depot, lateral supply, rotables, ready units.
+    "channels = 0",
+    "channels = 1",
+    "channels = 1000000",
+    "repair = { time = { dist = \"fixed\", hours = 1e12 }, cost = { planned = 0, failed = 0 } }",
+    "repair = { time = { dist = \"fixed\", hours = 0 }, cost = { planned = 0, failed = 0 }, condemn = { planned = 1, failed = 1 } }",
+    "repair = { time = { dist = \"gamma\", mean_hours = 1e-9, cv = 100 }, cost = { planned = 1e300, failed = 0 }, channels = 1 }",
+    "condemn = { planned = 1.5, failed = -1 }",
+    "stock = { every_site = 100000, depot = 100000 }",
+    "stock = { every_site = { min = 0, max = 10000 }, depot = { min = 0, max = 10000 } }",
+    "site = \"north\"",
+    "site = \"one\"",
+    "[sites.west]",
+    "[sites.one]\n[sites.two]",
+    "[depot]\ntransport = { every_site = { dist = \"fixed\", hours = 0 } }",
+    "transport = { every_site = { dist = \"lognormal\", median_hours = 1e300, log_sd = 1e3 } }",
+    "[lateral]\ntransfer = { dist = \"fixed\", hours = 0 }",
+    "transfer = { dist = \"fixed\", hours = 1e12 }",
+    "cost_per_shipment = 1e300",
+    "cost_per_transfer = 1e300",
+    "[ready_units]\nat_least = 0\nshare = 1",
+    "at_least = 1000000",
+    "share = 1e-300",
 ];
 
 const RECORD_SNIPPETS: &[&str] = &[
@@ -475,8 +515,9 @@ fn exercise(model: &Model, text: &str) {
         if est.max_trial_events > FUZZ_MAX_EVENTS || est.seconds > FUZZ_MAX_SECONDS {
             continue;
         }
-        let s = wearout::run::evaluate(model, policy, 0..trials, model.target, &Quiet)
-            .expect("not cancelled");
+        let s =
+            wearout::run::evaluate_counting_units(model, policy, 0..trials, model.target, &Quiet)
+                .expect("not cancelled");
         let json = wearout::result::EvaluateJson::new(model, &s, &plan);
         let single = serde_json::to_string(&json).expect("serialises");
         // The same run as two shards, merged.
@@ -541,7 +582,17 @@ fn exercise(model: &Model, text: &str) {
 
 #[test]
 fn fuzz_scenario_files() {
-    let bases = [shipped("demo"), shipped("b0"), shipped("b1")];
+    // B2 and a small network of three sites (a depot, lateral supply,
+    // rotables, ready units) cover the second part's keys.
+    let network = std::fs::read_to_string(format!("{}/ties-network.toml", data_dir()))
+        .expect("network fixture");
+    let bases = [
+        shipped("demo"),
+        shipped("b0"),
+        shipped("b1"),
+        shipped("b2"),
+        network,
+    ];
     let strategy = (
         0..bases.len(),
         prop::collection::vec(mutation(SCENARIO_SNIPPETS.len()), 1..4),

@@ -112,3 +112,135 @@ fn b0_reference_agrees_with_peer() {
     let se = (c.value * (1.0 - c.value) / 20_000.0 * 2.0).sqrt();
     assert!((c.value - 0.8977).abs() <= 3.0 * se, "chance {c:?}");
 }
+
+/// A figure the peer gives without a standard error: its se taken as ours
+/// times `scale` (sqrt of our trials over the peer's 4 000: the same spread
+/// over fewer trials).
+fn agree_no_se(what: &str, ours: &Moments, theirs: f64, scale: f64) {
+    agree(what, ours, theirs, ours.se() * scale);
+}
+
+#[test]
+fn b2_reference_agrees_with_peer() {
+    // Peer figures, B2 reference policy (MODEL.md, second part), 4 000
+    // trials, seed 1, copied from /work/shared/peer-figures.md ("B2, bus
+    // operator with three garages and a depot"). Ours: 20 000 trials of the
+    // scenario's own seed. The peer's money-over-time figures (years, the
+    // budget, present value) are not compared: that part of the model is
+    // not simulated yet.
+    let m = load("b2");
+    let p = m.policy("reference").expect("reference policy").clone();
+    let n = 20_000u64;
+    let sim = wearout::sim::Simulator::new(&m, &p);
+    let mut acc = wearout::summary::Accumulator::for_model(&m);
+    // Per trial, figures the summary keeps only as sums: each site's
+    // availability, the shares of the horizon with 48, 47, 46 and 45 buses
+    // up, and fleet-wide counts of the rotable and depot flows.
+    let units = m.site_units();
+    let mut site_avail = [Moments::default(); 3];
+    let mut shares = [Moments::default(); 4];
+    let mut counts = [
+        ("rotable removals", Moments::default(), 271.229, 0.158),
+        ("repairs started", Moments::default(), 230.073, 0.155),
+        ("condemned", Moments::default(), 40.120, 0.096),
+        ("lateral transfers", Moments::default(), 44.284, 0.110),
+        ("depot shipments", Moments::default(), 1608.314, 0.336),
+        ("depot requests", Moments::default(), 1611.637, 0.336),
+    ];
+    assert!(wearout::run::for_each_trial(
+        &sim,
+        0..n,
+        &wearout::run::Quiet,
+        |_, o| {
+            acc.push(o);
+            for (i, s) in o.sites.iter().enumerate() {
+                site_avail[i].push(s.up_hours / (units[i] as f64 * m.horizon));
+            }
+            for (k, x) in shares.iter_mut().enumerate() {
+                x.push(o.units_up[48 - k] / m.horizon);
+            }
+            counts[0]
+                .1
+                .push(o.sum(|q| (q.repair_entries + q.condemned) as f64));
+            counts[1].1.push(o.sum(|q| q.repairs as f64));
+            counts[2].1.push(o.sum(|q| q.condemned as f64));
+            counts[3].1.push(o.sum(|q| q.laterals as f64));
+            counts[4].1.push(o.sum(|q| q.shipments as f64));
+            counts[5].1.push(o.sum(|q| q.requests as f64));
+        }
+    ));
+    let s = wearout::summary::Summary::new(&m, &p, 0, acc, m.target);
+    let a = &s.acc;
+    agree("availability", &a.availability, 0.98766, 0.00005);
+    agree("readiness", &a.readiness, 0.98805, 0.00024);
+    agree("parts bought", &a.parts_cost, 2_625_349.0, 2_115.0);
+    agree("planned labour", &a.labour_planned, 228_554.0, 150.0);
+    agree("unplanned labour", &a.labour_unplanned, 696_794.0, 562.0);
+    agree("repair, planned", &a.repair_planned, 287_754.0, 435.0);
+    agree("repair, failed", &a.repair_failed, 760_870.0, 1_191.0);
+    // The peer's spend includes the initial capital, a constant.
+    assert_eq!(s.initial_stock_capital, 330_600.0);
+    agree("spend", &a.spend, 5_196_916.0 - 330_600.0, 2_446.0);
+    agree("holding", &a.holding, 266_994.0, 302.0);
+    agree("downtime penalty", &a.downtime_cost, 1_421_758.0, 5_844.0);
+    agree("total", &a.total, 6_288_074.0, 6_464.0);
+    agree("failures", &a.failures, 697.847, 0.372);
+    agree("planned", &a.planned, 913.383, 0.170);
+    agree("store empty", &a.stockouts, 89.573, 0.216);
+    agree("purchase orders", &a.orders, 1380.122, 0.311);
+    for (what, ours, theirs, se) in &counts {
+        agree(what, ours, *theirs, *se);
+    }
+    agree("down waiting", &a.down_waiting, 10_601.9, 72.8);
+    agree("down unplanned", &a.down_unplanned, 4_948.5, 3.1);
+    agree("down planned", &a.down_planned, 2_221.5, 0.8);
+    // Per garage: availability (no se given), the share of the horizon
+    // with at least its ready count up, stock-outs (no se given).
+    let scale = (n as f64 / 4000.0).sqrt();
+    for (i, (name, avail, ready, ready_se, stockouts)) in [
+        ("north", 0.98785, 0.99340, 0.00017, 39.09),
+        ("east", 0.98762, 0.99614, 0.00014, 30.30),
+        ("south", 0.98739, 0.99826, 0.00008, 20.18),
+    ]
+    .into_iter()
+    .enumerate()
+    {
+        assert_eq!(m.sites[i].name, name);
+        let site = &a.per_site[i];
+        agree_no_se(
+            &format!("{name} availability"),
+            &site_avail[i],
+            avail,
+            scale,
+        );
+        // Hours over the horizon: the share's mean and se.
+        let (mean, se) = (
+            site.ready_hours.mean() / m.horizon,
+            site.ready_hours.se() / m.horizon,
+        );
+        let both = (se * se + ready_se * ready_se).sqrt();
+        assert!(
+            (mean - ready).abs() <= 3.0 * both,
+            "{name} ready share: ours {mean} ± {se}, theirs {ready} ± {ready_se}"
+        );
+        agree_no_se(
+            &format!("{name} stock-outs"),
+            &site.stockouts,
+            stockouts,
+            scale,
+        );
+    }
+    for (k, theirs) in [0.6066, 0.2597, 0.0889, 0.0303].into_iter().enumerate() {
+        agree_no_se(
+            &format!("share with {} up", 48 - k),
+            &shares[k],
+            theirs,
+            scale,
+        );
+    }
+    // The chance of readiness at least 0.95: peer 0.9680 (Wilson 0.9621 to
+    // 0.9730); binomial standard errors of both.
+    let c = s.chance();
+    let se = (c.value * (1.0 - c.value) / n as f64 + 0.968 * 0.032 / 4000.0).sqrt();
+    assert!((c.value - 0.968).abs() <= 3.0 * se, "chance {c:?}");
+}

@@ -90,8 +90,10 @@ fn every_complete_example_in_the_docs_parses() {
     }
 }
 
-/// Keys whose names the user chooses (part, unit, policy names), rather
-/// than field names of the format: the children of these tables.
+/// Keys whose names the user chooses (part, unit, policy and site names),
+/// rather than field names of the format: the children of these tables.
+/// (The per-site tables also hold `every_site` and `depot`, documented
+/// with them.)
 fn is_name_table(path: &[String]) -> bool {
     let p: Vec<&str> = path.iter().map(String::as_str).collect();
     matches!(
@@ -102,6 +104,12 @@ fn is_name_table(path: &[String]) -> bool {
             | ["policies", _]
             | ["search", "parts"]
             | ["fleet", "initial_age_by_part"]
+            | ["sites"]
+            | ["depot", "transport"]
+            | ["ready_units", "at_least"]
+            | ["policies", _, _, "stock"]
+            | ["search", "parts", _, "stock"]
+            | ["search", "every_part", "stock"]
     )
 }
 

@@ -12,7 +12,7 @@ use std::path::Path;
 
 use wearout::model::{Model, Policy};
 use wearout::result::{EvaluateJson, FrontierJson};
-use wearout::run::{Quiet, evaluate};
+use wearout::run::{Quiet, evaluate, evaluate_counting_units};
 use wearout::shard::{
     self, MergeError, Merged, Merger, RunKind, ShardError, ShardHeader, ShardSpec, Source,
 };
@@ -94,8 +94,9 @@ fn evaluate_json(model: &Model, s: &wearout::summary::Summary) -> String {
     serde_json::to_string_pretty(&EvaluateJson::new(model, s, &plan)).expect("json")
 }
 
+/// The single run as `wearout evaluate` makes it (counting units up).
 fn single(model: &Model, policy: &Policy, trials: u64) -> String {
-    let s = evaluate(model, policy, 0..trials, model.target, &Quiet).expect("runs");
+    let s = evaluate_counting_units(model, policy, 0..trials, model.target, &Quiet).expect("runs");
     evaluate_json(model, &s)
 }
 
@@ -137,7 +138,7 @@ fn merge_equals_single_run_with_other_seed_and_target() {
     let policy = model.policies[1].clone();
     let target = 0.9;
     let trials = 150;
-    let s = evaluate(&model, &policy, 0..trials, target, &Quiet).expect("runs");
+    let s = evaluate_counting_units(&model, &policy, 0..trials, target, &Quiet).expect("runs");
     let want = evaluate_json(&model, &s);
     let files: Vec<Vec<u8>> = (0..3)
         .map(|k| {
@@ -165,7 +166,7 @@ fn frontier_validation_merge_equals_single_run() {
     let mut more = base.clone();
     more.name = "more stock".into();
     for p in &mut more.parts {
-        p.stock += 1;
+        p.stock.add(1, false);
     }
     let mut rtf = base.clone();
     rtf.name = "run to failure".into();
@@ -218,7 +219,8 @@ fn records_are_lossless_and_compact() {
     );
     let bytes = write(&h, &model, std::slice::from_ref(&policy));
     let info = shard::open("b1.shard", &mut Cursor::new(bytes.as_slice())).expect("opens");
-    let sim = wearout::sim::Simulator::new(&model, &policy);
+    // An evaluate run counts units up.
+    let sim = wearout::sim::Simulator::new(&model, &policy).counting_units_up();
     let mut ws = wearout::sim::Workspace::default();
     let mut seen = 0;
     shard::read_outcomes(&info, &mut Cursor::new(bytes.as_slice()), |p, t, o| {
@@ -231,7 +233,8 @@ fn records_are_lossless_and_compact() {
     .expect("reads");
     assert_eq!(seen, trials);
     // Compact: well under the raw layout of every field as 8 bytes
-    // (4 fleet figures + events, 10 per part type).
+    // (4 fleet figures + events, the hours by units up, 11 per part type:
+    // the first part's 10 and the backorder hours).
     let header_len = bytes.iter().take_while(|&&b| b != b'\n').count()
         + 1
         + bytes[..]
@@ -242,7 +245,7 @@ fn records_are_lossless_and_compact() {
             .count()
         + 1;
     let per_trial = (bytes.len() - header_len - shard::TRAILER_LEN as usize) as f64 / trials as f64;
-    let raw = 8.0 * (5.0 + 10.0 * model.parts.len() as f64);
+    let raw = 8.0 * (5.0 + (model.units.len() + 1) as f64 + 11.0 * model.parts.len() as f64);
     assert!(
         per_trial < 0.5 * raw,
         "{per_trial} bytes per trial vs raw {raw}"
@@ -331,7 +334,7 @@ fn refuses_different_policies() {
     );
     // Same name, another stock level.
     let mut c = a.clone();
-    c.parts[0].stock += 1;
+    c.parts[0].stock.add(1, false);
     refused(
         &two_runs((&m, &s, &a, t), (&m, &s, &c, t), 20),
         &[
@@ -488,9 +491,9 @@ fn refuses_damaged_truncated_and_foreign_files() {
     let e = open(b"hours,failed\n1,1\n").unwrap_err().to_string();
     assert!(e.contains("not a wearout shard file"), "{e}");
     let mut v2 = good.clone();
-    v2[14] = b'2';
+    v2[14] = b'3';
     let e = open(&v2).unwrap_err().to_string();
-    assert!(e.contains("format version 2"), "{e}");
+    assert!(e.contains("format version 3"), "{e}");
 }
 
 #[test]

@@ -391,7 +391,7 @@ fn uncertain_trials_are_reproducible() {
     // ...but not what policies share: another policy's trial draws the same
     // lives, and they differ from trial to trial.
     let mut other = policy.clone();
-    other.parts[0].stock = 3;
+    other.parts[0].stock = wearout::model::Stock::single(3);
     let sim2 = Simulator::new(&on, &other);
     let (mut a, mut b, mut c) = (Vec::new(), Vec::new(), Vec::new());
     let s5 = TrialSeed::new(on.seed, 5);

@@ -15,26 +15,104 @@ pub fn run(file: Option<&Path>, out: &mut dyn Write) -> Result<(), UserError> {
     if !model.description.is_empty() {
         s.push_str(&format!("{}\n", model.description));
     }
+    let target = match &model.ready {
+        Some(r) => format!(
+            "ready-units target: {} at once, for {} of the horizon{}",
+            model
+                .sites
+                .iter()
+                .zip(&r.at_least)
+                .map(|(site, k)| if model.has_sites() {
+                    format!("{} at least {k} up", site.name)
+                } else {
+                    format!("at least {k} units up")
+                })
+                .collect::<Vec<_>>()
+                .join(", "),
+            pct2(model.target),
+            model.availability_target.map_or(String::new(), |a| format!(
+                " (availability target {} reported beside)",
+                pct2(a)
+            ))
+        ),
+        None => format!("target availability {}", pct2(model.target)),
+    };
     s.push_str(&format!(
-        "\nHorizon {} h, target availability {}, downtime penalty {} per unit-hour, seed {}, {} trials by default\n",
+        "\nHorizon {} h, {target}, downtime penalty {} per unit-hour, seed {}, {} trials by default\n",
         num(model.horizon, 0),
-        pct2(model.target),
         money(model.downtime_penalty),
         model.seed,
         model.trials
     ));
     s.push_str("\nFleet\n");
-    let mut rows = vec![vec![
-        "unit type".to_string(),
-        "count".into(),
-        "positions".into(),
-    ]];
+    let sites = model.has_sites();
+    let mut head = vec!["unit type".to_string(), "count".into()];
+    if sites {
+        head.push("site".into());
+    }
+    head.push("positions".into());
+    let mut rows = vec![head];
     for g in &model.groups {
         let ut = &model.unit_types[g.unit_type];
         let pos: Vec<&str> = ut.positions.iter().map(|p| p.name.as_str()).collect();
-        rows.push(vec![ut.name.clone(), g.count.to_string(), pos.join(", ")]);
+        let mut row = vec![ut.name.clone(), g.count.to_string()];
+        if sites {
+            row.push(model.sites[g.site].name.clone());
+        }
+        row.push(pos.join(", "));
+        rows.push(row);
     }
     s.push_str(&table(&rows));
+    if sites {
+        s.push_str(&format!(
+            "\nSites{}\n",
+            if model.depot.is_some() {
+                ", each resupplied by the depot"
+            } else {
+                ", each resupplied directly (no depot)"
+            }
+        ));
+        let units = model.site_units();
+        let mut head = vec!["site".to_string(), "units".into()];
+        if model.ready.is_some() {
+            head.push("ready count".into());
+        }
+        if model.depot.is_some() {
+            head.push("transport from depot, mean h".into());
+        }
+        let mut rows = vec![head];
+        for (i, site) in model.sites.iter().enumerate() {
+            let mut row = vec![site.name.clone(), units[i].to_string()];
+            if let Some(r) = &model.ready {
+                row.push(r.at_least[i].to_string());
+            }
+            if let Some(d) = &model.depot {
+                row.push(num(d.transport[i].mean(), 1));
+            }
+            rows.push(row);
+        }
+        s.push_str(&table(&rows));
+        if let Some(d) = &model.depot
+            && d.cost_per_shipment > 0.0
+        {
+            s.push_str(&format!(
+                "Cost per shipment: {}\n",
+                money(d.cost_per_shipment)
+            ));
+        }
+        match &model.lateral {
+            Some(l) => s.push_str(&format!(
+                "Lateral supply between sites: transfer mean {} h{}\n",
+                num(l.transfer.mean(), 1),
+                if l.cost_per_transfer > 0.0 {
+                    format!(", {} per transfer", money(l.cost_per_transfer))
+                } else {
+                    String::new()
+                }
+            )),
+            None => s.push_str("No lateral supply between sites\n"),
+        }
+    }
     s.push_str("\nPart types\n");
     let mut rows = vec![vec![
         "part type".to_string(),
@@ -44,6 +122,7 @@ pub fn run(file: Option<&Path>, out: &mut dyn Write) -> Result<(), UserError> {
         "price".into(),
         "lead time mean h".into(),
         "safety".into(),
+        "repair".into(),
     ]];
     for p in &model.parts {
         rows.push(vec![
@@ -55,6 +134,20 @@ pub fn run(file: Option<&Path>, out: &mut dyn Write) -> Result<(), UserError> {
             num(p.lead_time.mean(), 0),
             p.hard_limit
                 .map_or(String::new(), |l| format!("hard limit {} h", num(l, 0))),
+            p.repair.as_ref().map_or("consumable".to_string(), |r| {
+                format!(
+                    "rotable: repair mean {} h, cost {} / {}, condemned {} / {}, {}",
+                    num(r.time.mean(), 0),
+                    money(r.cost_planned),
+                    money(r.cost_failed),
+                    pct2(r.condemn_planned),
+                    pct2(r.condemn_failed),
+                    r.channels
+                        .map_or("unlimited channels".to_string(), |c| format!(
+                            "{c} channels"
+                        ))
+                )
+            }),
         ]);
     }
     s.push_str(&table(&rows));
@@ -75,6 +168,39 @@ pub fn run(file: Option<&Path>, out: &mut dyn Write) -> Result<(), UserError> {
         ]);
     }
     s.push_str(&table(&rows));
+    if model.has_rotables()
+        && let Some(p) = model.policies.first()
+    {
+        let plan = plan_on_averages(&model, p);
+        s.push_str(&format!(
+            "\nRotable pipelines by the plan on averages (policy `{}`: removals x mean return time{})\n",
+            p.name,
+            if model.depot.is_some() {
+                " + transport"
+            } else {
+                ""
+            }
+        ));
+        let mut rows = vec![vec![
+            "part type".to_string(),
+            "removals per 1,000 h".into(),
+            "return h".into(),
+            "parts on their way back".into(),
+            "spares held".into(),
+        ]];
+        for ((pt, pp), pl) in model.parts.iter().zip(&p.parts).zip(&plan.parts) {
+            if pt.is_repairable() {
+                rows.push(vec![
+                    pt.name.clone(),
+                    num(pl.demand_per_hour * 1000.0, 2),
+                    num(pl.resupply_hours, 0),
+                    num(pl.pipeline, 2),
+                    pp.stock.total().to_string(),
+                ]);
+            }
+        }
+        s.push_str(&table(&rows));
+    }
     if let Some(sp) = &model.search {
         s.push_str(&format!(
             "\nSearch space: {} policies\n",

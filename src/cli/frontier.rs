@@ -24,6 +24,28 @@ pub struct FrontierArgs<'a> {
     pub policies: Option<&'a Path>,
 }
 
+/// Refuse what the search cannot do yet: stock per site and at a depot, and
+/// a ready-units target (its chance is not in the search's surrogate).
+pub(crate) fn searchable(model: &Model) -> Result<(), UserError> {
+    if model.has_sites() || model.ready.is_some() {
+        return Err(UserError(format!(
+            "scenario `{}` has {}: the frontier search does not cover {} yet; use `wearout evaluate` to cost its named policies",
+            model.name,
+            if model.has_sites() {
+                "sites"
+            } else {
+                "a ready-units target"
+            },
+            if model.has_sites() {
+                "stock per site and at a depot"
+            } else {
+                "a ready-units target"
+            }
+        )));
+    }
+    Ok(())
+}
+
 /// Load, search and return the model, result and JSON (used by reports too).
 pub fn compute(
     args: &FrontierArgs<'_>,
@@ -34,6 +56,7 @@ pub fn compute(
     }
     let (mut model, _shown) = load_or_demo(args.file)?;
     opts.apply(&mut model);
+    searchable(&model)?;
     let target = check_target(opts.target, model.target)?;
     let space = model.search.as_ref().ok_or_else(|| {
         UserError(format!(

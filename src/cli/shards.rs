@@ -213,6 +213,7 @@ fn fixed_setup(
 ) -> Result<(Model, Vec<Policy>, u64, f64), UserError> {
     let (mut model, _shown) = crate::scenario::load_or_demo(args.file)?;
     opts.apply(&mut model);
+    super::frontier::searchable(&model)?;
     let target = check_target(opts.target, model.target)?;
     if args.exhaustive || args.trials.is_some() {
         return Err(UserError(

@@ -36,7 +36,7 @@ pub mod lp;
 use std::collections::{HashMap, HashSet};
 use std::ops::Range;
 
-use crate::model::{CostBasis, CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule};
+use crate::model::{CostBasis, CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule, Stock};
 use crate::run::Progress;
 use crate::sim::{ActiveParts, Simulator};
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
@@ -171,6 +171,10 @@ pub enum FrontierError {
     NothingFits(f64),
     #[error("interrupted")]
     Interrupted,
+    #[error(
+        "the frontier search does not cover {0} yet; use `wearout evaluate` to cost the scenario's named policies"
+    )]
+    NotCovered(&'static str),
 }
 
 /// The options (rule x stock) of each part type.
@@ -189,7 +193,10 @@ impl Options {
                 let mut v = Vec::new();
                 for &rule in &ps.rules {
                     for stock in ps.stock_min..=ps.stock_max {
-                        v.push(PartPolicy { rule, stock });
+                        v.push(PartPolicy {
+                            rule,
+                            stock: Stock::single(stock),
+                        });
                     }
                 }
                 v
@@ -204,7 +211,7 @@ impl Options {
             parts: combo
                 .iter()
                 .enumerate()
-                .map(|(p, &o)| self.per_part[p][o as usize])
+                .map(|(p, &o)| self.per_part[p][o as usize].clone())
                 .collect(),
         }
     }
@@ -399,6 +406,12 @@ pub fn search(
     progress: &dyn Progress,
 ) -> Result<FrontierResult, FrontierError> {
     let space = model.search.as_ref().ok_or(FrontierError::NoSearchSpace)?;
+    if model.has_sites() {
+        return Err(FrontierError::NotCovered("stock per site and at a depot"));
+    }
+    if model.ready.is_some() {
+        return Err(FrontierError::NotCovered("a ready-units target"));
+    }
     let options = Options::new(model).ok_or(FrontierError::NoSearchSpace)?;
     let measure = space.cost;
     let size = space.size();
@@ -484,26 +497,27 @@ pub fn search(
             .per_part
             .iter()
             .enumerate()
-            .flat_map(|(p, opts)| opts.iter().map(move |pp| (p, *pp)))
+            .flat_map(|(p, opts)| opts.iter().map(move |pp| (p, pp.clone())))
             .collect();
         progress.phase("screening", tasks.len() as u64 * screen_n);
         use rayon::prelude::*;
         let results: Vec<Option<Screened>> = tasks
             .par_iter()
-            .map_init(crate::sim::Workspace::default, |ws, &(p, pp)| {
+            .map_init(crate::sim::Workspace::default, |ws, (p, pp)| {
+                let p = *p;
                 if progress.cancelled() {
                     return None;
                 }
                 let mut parts: Vec<PartPolicy> = vec![
                     PartPolicy {
                         rule: Rule::RunToFailure,
-                        stock: 0,
+                        stock: Stock::single(0),
                     };
                     n_parts
                 ];
-                parts[p] = pp;
+                parts[p] = pp.clone();
                 let sim = Simulator::with_parts(model, &parts, ActiveParts::only(n_parts, p));
-                let capital = pp.stock as f64 * model.parts[p].price;
+                let capital = pp.stock.total() as f64 * model.parts[p].price;
                 let mut down = Vec::with_capacity(screen_n as usize);
                 let mut cost = Vec::with_capacity(screen_n as usize);
                 for t in 0..screen_n {

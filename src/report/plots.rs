@@ -998,7 +998,7 @@ pub fn stock(v: &View<'_>) -> Result<String, ReportError> {
                 .map(|pv| {
                     let m = pv.lead_time_demand(model, p);
                     (
-                        pv.policy.parts[p].stock,
+                        pv.policy.parts[p].stock.total(),
                         m,
                         poisson_quantile(m, 0.05),
                         poisson_quantile(m, 0.95),

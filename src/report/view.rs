@@ -62,7 +62,7 @@ impl PolicyView<'_> {
                     + m.labour_planned.mean()
                     + m.labour_unplanned.mean()
                     + m.holding.mean()
-                    + self.policy.parts[p].stock as f64 * model.parts[p].price
+                    + self.policy.parts[p].stock.total() as f64 * model.parts[p].price
             }
             CostBasis::TotalWithPenalty => m.total.mean(),
         }

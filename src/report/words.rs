@@ -40,12 +40,12 @@ fn part_name(model: &Model, p: usize) -> String {
 /// How a part type's setting changes from policy `a` to policy `b`, in
 /// words, or `None` when it does not change.
 fn change_words(model: &Model, p: usize, a: &PolicyView<'_>, b: &PolicyView<'_>) -> Option<String> {
-    let pa = a.policy.parts[p];
-    let pb = b.policy.parts[p];
+    let pa = &a.policy.parts[p];
+    let pb = &b.policy.parts[p];
     let name = part_name(model, p);
     let mut bits = Vec::new();
     if pb.stock != pa.stock {
-        let d = pb.stock as i64 - pa.stock as i64;
+        let d = pb.stock.total() as i64 - pa.stock.total() as i64;
         let n = d.unsigned_abs() as u32;
         let spares = if n == 1 { "spare" } else { "spares" };
         if d > 0 {
@@ -125,7 +125,8 @@ fn step(v: &View<'_>, lo: &PolicyView<'_>, hi: &PolicyView<'_>) -> Vec<Span> {
             let name = part_name(model, p);
             let cap = match basis {
                 CostBasis::Spend => {
-                    (hi.policy.parts[p].stock as f64 - lo.policy.parts[p].stock as f64)
+                    (hi.policy.parts[p].stock.total() as f64
+                        - lo.policy.parts[p].stock.total() as f64)
                         * model.parts[p].price
                 }
                 CostBasis::TotalWithPenalty => 0.0,
@@ -718,7 +719,7 @@ fn part_table(v: &View<'_>) -> Block {
     let mut rows = Vec::new();
     for (p, part) in model.parts.iter().enumerate() {
         for (k, pv) in v.chosen_views().enumerate() {
-            let pp = pv.policy.parts[p];
+            let pp = &pv.policy.parts[p];
             let m = &pv.summary.acc.per_part[p];
             let before = match pp.rule.interval() {
                 Some(t) => chance_pct(part.life.cdf(t)),
@@ -748,7 +749,7 @@ fn part_table(v: &View<'_>) -> Block {
                 ),
                 format!(
                     "{} / {served}",
-                    chance_pct(poisson_fill_rate(ltd, pp.stock))
+                    chance_pct(poisson_fill_rate(ltd, pp.stock.total()))
                 ),
                 format!(
                     "{} / {}",
@@ -787,7 +788,7 @@ fn part_table(v: &View<'_>) -> Block {
 }
 
 /// A part type's setting in a table cell: `RTF S1`, `A8,000 S2`.
-fn compact(pp: crate::model::PartPolicy) -> String {
+fn compact(pp: &crate::model::PartPolicy) -> String {
     let rule = match pp.rule {
         Rule::RunToFailure => "RTF".to_string(),
         Rule::Age(t) => format!("A{}", num(t, 0)),
@@ -862,7 +863,7 @@ fn all_policies(v: &View<'_>) -> Vec<Block> {
         .iter()
         .map(|p| {
             let mut r = vec![p.name().to_string(), money(p.summary.initial_stock_capital)];
-            r.extend(p.policy.parts.iter().map(|&pp| compact(pp)));
+            r.extend(p.policy.parts.iter().map(compact));
             r
         })
         .collect();

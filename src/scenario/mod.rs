@@ -8,6 +8,7 @@
 //! maximum-likelihood fits) and `uncertainty` for a life fitted to records,
 //! the only file the scenario layer reads besides the scenario itself.
 
+mod network;
 mod tree;
 
 use std::path::Path;
@@ -116,7 +117,17 @@ pub fn parse_with_base(
 }
 
 const ROOT_KEYS: &[&str] = &[
-    "scenario", "defaults", "parts", "units", "fleet", "policies", "search",
+    "scenario",
+    "defaults",
+    "parts",
+    "units",
+    "fleet",
+    "policies",
+    "search",
+    "sites",
+    "depot",
+    "lateral",
+    "ready_units",
 ];
 
 fn dist_err(v: &Val<'_, '_>, e: DistError) -> ScenarioError {
@@ -259,7 +270,17 @@ fn read_life(v: Val<'_, '_>) -> Result<Life, ScenarioError> {
             }
         }
         "gamma" => {
-            let shape = t.need("shape", "the gamma shape k", |v| v.positive())?;
+            let shape = t.need("shape", "the gamma shape k", |v| {
+                let k = v.positive()?;
+                // The survival function of an aged part costs about `k`
+                // steps; beyond this a trial could run for hours.
+                if k > 1e4 {
+                    return Err(v.error(format!(
+                        "a gamma shape of {k} is beyond what can be simulated; allowed: up to 10 000 (a spread of lives of at least 1 % of the mean)"
+                    )));
+                }
+                Ok(k)
+            })?;
             let scale = t.with("scale", |v| v.positive())?;
             let mean = t.with("mean", |v| v.positive())?;
             t.finish(&["dist", "shape", "scale", "mean"])?;
@@ -518,6 +539,7 @@ fn read_part(
         })?,
     };
     let hard_limit = t.with("hard_limit_hours", |v| v.positive())?;
+    let repair = t.with("repair", network::read_repair)?;
     let safety = t.with("safety_critical", |v| match v.value {
         toml::de::DeValue::Boolean(b) => Ok(*b),
         _ => Err(v.error("expected true or false")),
@@ -541,6 +563,7 @@ fn read_part(
         "holding",
         "hard_limit_hours",
         "safety_critical",
+        "repair",
     ])?;
     Ok(PartType {
         name: name.to_string(),
@@ -554,6 +577,7 @@ fn read_part(
         holding_per_hour: holding.per_spare_hour(price),
         hard_limit,
         life_uncertainty,
+        repair,
     })
 }
 
@@ -672,7 +696,12 @@ fn read_rule(t: &Tbl<'_, '_>, part: &PartType) -> Result<Rule, ScenarioError> {
     }
 }
 
-fn read_policy(name: &str, v: Val<'_, '_>, parts: &[PartType]) -> Result<Policy, ScenarioError> {
+fn read_policy(
+    name: &str,
+    v: Val<'_, '_>,
+    parts: &[PartType],
+    layout: &network::Layout,
+) -> Result<Policy, ScenarioError> {
     let t = v.table()?;
     let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
     let mut out: Vec<Option<PartPolicy>> = vec![None; parts.len()];
@@ -689,8 +718,8 @@ fn read_policy(name: &str, v: Val<'_, '_>, parts: &[PartType]) -> Result<Policy,
         let pt = v.table()?;
         let rule = read_rule(&pt, &parts[pid])?;
         let stock = pt.need("stock", "base-stock level S (a whole number, 0 or more)", |v| {
-            v.integer(0, 100_000)
-        })? as u32;
+            network::read_stock(v, layout)
+        })?;
         pt.finish(&["rule", "interval_hours", "interval_fraction", "stock"])?;
         out[pid] = Some(PartPolicy { rule, stock });
         Ok(())
@@ -774,6 +803,7 @@ fn read_part_search(
     t: &Tbl<'_, '_>,
     part: &PartType,
     fallback: Option<&Tbl<'_, '_>>,
+    layout: &network::Layout,
 ) -> Result<PartSearch, ScenarioError> {
     // A key missing from the part's table comes from [search.every_part].
     let pick = |key: &str| -> Option<&Tbl<'_, '_>> {
@@ -807,18 +837,12 @@ fn read_part_search(
     };
     let intervals = read_intervals(iv_tbl, part)?;
     let stock_tbl = pick("stock").unwrap_or(t);
-    let (smin, smax) = stock_tbl
-        .with("stock", |v| {
-            let s = v.table()?;
-            let a = s.need("min", "smallest stock level", |v| v.integer(0, 10_000))? as u32;
-            let b = s.need("max", "largest stock level", |v| v.integer(0, 10_000))? as u32;
-            s.finish(&["min", "max"])?;
-            if b < a {
-                return Err(s.error("`max` must be at least `min`"));
-            }
-            Ok((a, b))
-        })?
-        .unwrap_or((0, 0));
+    let (smin, smax, locations) =
+        match stock_tbl.with("stock", |v| network::read_stock_ranges(v, layout))? {
+            Some(r) => r,
+            None if layout.implicit => (0, 0, None),
+            None => network::read_stock_ranges_default(layout),
+        };
     let mut rules = Vec::new();
     let mut seen = std::collections::HashSet::new();
     for k in &kinds {
@@ -859,10 +883,15 @@ fn read_part_search(
         rules,
         stock_min: smin,
         stock_max: smax,
+        locations,
     })
 }
 
-fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, ScenarioError> {
+fn read_search(
+    v: Val<'_, '_>,
+    parts: &[PartType],
+    layout: &network::Layout,
+) -> Result<SearchSpace, ScenarioError> {
     let t = v.table()?;
     let basis = t
         .with("cost", |v| v.one_of(&["spend", "total"]))?
@@ -929,7 +958,7 @@ fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, Scenar
                 )));
             };
             let tb = v.table()?;
-            let ps = read_part_search(&tb, &parts[pid], every_tbl.as_ref())?;
+            let ps = read_part_search(&tb, &parts[pid], every_tbl.as_ref(), layout)?;
             tb.finish(SEARCH_PART_KEYS)?;
             per_part[pid] = Some(ps);
             Ok(())
@@ -941,7 +970,7 @@ fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, Scenar
         match ps {
             Some(ps) => out.push(ps),
             None => match &every_tbl {
-                Some(e) => out.push(read_part_search(e, &parts[i], None)?),
+                Some(e) => out.push(read_part_search(e, &parts[i], None, layout)?),
                 None => {
                     return Err(t.error(format!(
                         "the search does not say what to try for part type `{}`: add [search.parts.{}] or [search.every_part]",
@@ -988,14 +1017,20 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
             Ok(h)
         })?;
         let penalty = t.need("downtime_penalty_per_hour", "cost per unit-hour down (0 or more)", |v| v.non_negative())?;
-        let target = t.need("target_availability", "the availability target A*, in (0, 1]", |v| {
+        let read_target = |v: Val<'_, '_>| {
             let x = v.number()?;
             if x > 0.0 && x <= 1.0 {
                 Ok(x)
             } else {
                 Err(v.error(format!("must be in (0, 1], e.g. 0.92 (got {x})")))
             }
-        })?;
+        };
+        // With a ready-units target in force the availability target is optional.
+        let target = if root.has("ready_units") {
+            t.with("target_availability", read_target)?
+        } else {
+            Some(t.need("target_availability", "the availability target A*, in (0, 1] (or give a [ready_units] target)", read_target)?)
+        };
         let seed = t.with("seed", |v| v.integer(0, u64::MAX as i128))?.unwrap_or(1) as u64;
         let trials = t.with("trials", |v| v.integer(1, 1_000_000_000))?.unwrap_or(2000) as u64;
         let currency = t.with("currency", |v| v.string().map(str::to_string))?.unwrap_or_default();
@@ -1023,7 +1058,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
         description,
         horizon,
         downtime_penalty,
-        target,
+        sc_target,
         seed,
         trials,
         currency,
@@ -1114,6 +1149,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
         Ok(out)
     })?;
     let unit_names: Vec<&str> = unit_types.iter().map(|u| u.name.as_str()).collect();
+    let sites = network::read_sites(root)?;
 
     let groups: Vec<FleetGroup> = root.need(
         "fleet",
@@ -1136,6 +1172,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
                 let count = t.need("count", "how many units of this type (1 or more)", |v| {
                     v.integer(1, 1_000_000)
                 })? as usize;
+                let site = network::read_group_site(&t, &sites)?;
                 let age = t.with("initial_age", read_age)?;
                 let mut by_part: Vec<(usize, AgeSpec)> = Vec::new();
                 t.with("initial_age_by_part", |v| {
@@ -1152,7 +1189,13 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
                     })?;
                     Ok(())
                 })?;
-                t.finish(&["unit", "count", "initial_age", "initial_age_by_part"])?;
+                t.finish(&[
+                    "unit",
+                    "count",
+                    "initial_age",
+                    "initial_age_by_part",
+                    "site",
+                ])?;
                 let mut initial_age = Vec::with_capacity(parts.len());
                 for (pid, part) in parts.iter().enumerate() {
                     let spec = by_part
@@ -1175,6 +1218,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
                 Ok(FleetGroup {
                     unit_type: unit,
                     count,
+                    site,
                     initial_age,
                 })
             })?;
@@ -1191,32 +1235,48 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
         },
     )?;
 
+    let mut layout = network::Layout::new(&sites, false);
+    network::check_sites_used(root, &layout, &groups)?;
+    let depot = network::read_depot(root, &layout)?;
+    layout.depot = depot.is_some();
+    let lateral = network::read_lateral(root, &layout)?;
+    let ready = network::read_ready(root, &layout, &groups)?;
     let policies = root
         .with("policies", |v| {
             let t = v.table()?;
             t.entries(|key, v| {
                 check_name(&v, key)?;
-                let p = read_policy(key, v, &parts)?;
+                let p = read_policy(key, v, &parts, &layout)?;
                 Ok((p, v.span))
             })
         })?
         .unwrap_or_default();
-    let search = root.with("search", |v| read_search(v, &parts))?;
+    let search = root.with("search", |v| read_search(v, &parts, &layout))?;
     root.finish(ROOT_KEYS)?;
 
     let units = Model::flatten_units(&unit_types, &groups);
+    let (ready, target) = match ready {
+        Some((r, share)) => (Some(r), share),
+        // Without [ready_units] the availability target was required.
+        None => (None, sc_target.unwrap_or(1.0)),
+    };
     let model = Model {
         name,
         description,
         horizon,
         downtime_penalty,
         target,
+        availability_target: sc_target,
+        ready,
         seed,
         trials,
         parts,
         unit_types,
         groups,
         units,
+        sites,
+        depot,
+        lateral,
         policies: policies.iter().map(|(p, _)| p.clone()).collect(),
         search,
         currency,
