@@ -8,18 +8,15 @@
 //! alternately, and the median is reported. With `-- --million` it runs
 //! 1 000 000 trials instead and reports the peak resident memory.
 
+#[path = "../tests/common/mod.rs"]
+mod common;
+
 use std::time::Instant;
 
+use common::peak_rss_mb;
 use rayon::prelude::*;
 use wearout::run::{Quiet, evaluate};
 use wearout::sim::{DrawCounts, Simulator, Workspace};
-
-fn peak_rss_mb() -> Option<f64> {
-    let s = std::fs::read_to_string("/proc/self/status").ok()?;
-    let line = s.lines().find(|l| l.starts_with("VmHWM:"))?;
-    let kb: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
-    Some(kb / 1024.0)
-}
 
 fn median(mut v: Vec<f64>) -> f64 {
     v.sort_by(f64::total_cmp);
@@ -28,8 +25,7 @@ fn median(mut v: Vec<f64>) -> f64 {
 
 fn main() {
     let million = std::env::args().any(|a| a == "--million");
-    let path = concat!(env!("CARGO_MANIFEST_DIR"), "/scenarios/b1.toml");
-    let model = wearout::scenario::load(std::path::Path::new(path)).expect("b1 loads");
+    let model = common::load("b1");
     let policy = model.policy("reference").expect("reference policy").clone();
     let sim = Simulator::new(&model, &policy);
 

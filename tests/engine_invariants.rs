@@ -6,14 +6,11 @@
 
 mod common;
 
+use common::load;
+
 use wearout::model::Model;
 use wearout::run::{Quiet, evaluate};
 use wearout::sim::{Simulator, Workspace};
-
-fn load(name: &str) -> Model {
-    let path = format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"));
-    wearout::scenario::load(std::path::Path::new(&path)).expect("scenario loads")
-}
 
 /// A scenario that exercises block replacement, a safety-critical part with
 /// a hard limit, several positions of one part type, zero stock, and every

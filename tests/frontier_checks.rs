@@ -4,16 +4,13 @@
 
 mod common;
 
+use common::load;
+
 use wearout::frontier::{
     FrontierConfig, FrontierResult, VALIDATION_OFFSET, hypervolume, non_dominated, search,
 };
-use wearout::model::{Model, Rule};
+use wearout::model::Rule;
 use wearout::run::Quiet;
-
-fn load(name: &str) -> Model {
-    let path = format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"));
-    wearout::scenario::load(std::path::Path::new(&path)).expect("scenario loads")
-}
 
 fn config(
     search_trials: u64,

@@ -11,8 +11,12 @@
 //! PERCENTILE.INC), and the chance is the share of trials meeting the
 //! target (README, "What the figures mean").
 
+mod common;
+
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
+
+use common::temp_dir;
 use std::sync::OnceLock;
 
 use wearout::frontier::{FrontierConfig, FrontierResult, VALIDATION_OFFSET, search};
@@ -33,12 +37,6 @@ fn demo() -> &'static (Model, FrontierResult, FrontierJson) {
         let json = FrontierJson::new(&model, &result, false);
         (model, result, json)
     })
-}
-
-fn temp_dir(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("wearout-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    d
 }
 
 /// The demo report, written once.

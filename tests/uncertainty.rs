@@ -12,6 +12,8 @@
 //!
 //! Tolerances are multiples of standard errors, on fixed seeds.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 
 use wearout::dist::Life;
@@ -35,10 +37,7 @@ fn six_failures() -> Vec<f64> {
 
 /// A fresh folder for one test.
 fn folder(tag: &str) -> PathBuf {
-    let dir =
-        std::env::temp_dir().join(format!("wearout-uncertainty-{}-{tag}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
+    common::temp_dir(&format!("uncertainty-{tag}"))
 }
 
 fn write(dir: &Path, name: &str, text: &str) -> PathBuf {

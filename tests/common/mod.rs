@@ -1,10 +1,34 @@
-//! Shared helpers for the integration tests: build a model from scenario
-//! text, run trials, and compare figures within their standard errors.
+//! Shared helpers for the integration tests (and the benches, which
+//! include this file by path): the shipped scenarios, a model from
+//! scenario text, trials run, figures compared within their standard
+//! errors, the `wearout` binary run, and a fresh temporary folder.
 #![allow(dead_code)]
+
+use std::path::PathBuf;
+use std::process::Command;
+use std::time::Instant;
 
 use wearout::model::Model;
 use wearout::run::{Quiet, evaluate};
 use wearout::summary::Summary;
+
+/// The path of a shipped scenario: `scenarios/NAME.toml`.
+pub fn scenario_path(name: &str) -> String {
+    format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"))
+}
+
+/// The text of a shipped scenario.
+pub fn scenario_text(name: &str) -> String {
+    std::fs::read_to_string(scenario_path(name)).expect("shipped scenario")
+}
+
+/// A shipped scenario, loaded from its file as the command line does.
+pub fn load(name: &str) -> Model {
+    match wearout::scenario::load(std::path::Path::new(&scenario_path(name))) {
+        Ok(m) => m,
+        Err(e) => panic!("scenario {name} does not load: {e}"),
+    }
+}
 
 /// Parse scenario text, panicking with the error (tests only).
 pub fn model(text: &str) -> Model {
@@ -91,4 +115,51 @@ p = {policy}
             policy = self.policy,
         )
     }
+}
+
+/// The `wearout` binary as a command: no backtraces, and no progress bar
+/// (`CI` set).
+pub fn wearout() -> Command {
+    let mut c = Command::new(env!("CARGO_BIN_EXE_wearout"));
+    c.env_remove("RUST_BACKTRACE").env("CI", "1");
+    c
+}
+
+/// What a finished run of the binary gave.
+pub struct Ran {
+    /// The exit status (`None` when a signal ended the process).
+    pub code: Option<i32>,
+    pub stdout: String,
+    pub stderr: String,
+    /// Wall time of the run.
+    pub seconds: f64,
+}
+
+/// Run the binary with `args` to its end.
+pub fn run_wearout(args: &[&str]) -> Ran {
+    let t = Instant::now();
+    let out = wearout().args(args).output().expect("wearout runs");
+    Ran {
+        code: out.status.code(),
+        stdout: String::from_utf8_lossy(&out.stdout).into_owned(),
+        stderr: String::from_utf8_lossy(&out.stderr).into_owned(),
+        seconds: t.elapsed().as_secs_f64(),
+    }
+}
+
+/// A fresh, empty temporary folder named after the test and this process.
+pub fn temp_dir(tag: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("wearout-{tag}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).expect("temp dir");
+    d
+}
+
+/// The peak resident memory of this process so far, in MB (Linux
+/// `VmHWM`), if known.
+pub fn peak_rss_mb() -> Option<f64> {
+    let s = std::fs::read_to_string("/proc/self/status").ok()?;
+    let line = s.lines().find(|l| l.starts_with("VmHWM:"))?;
+    let kb: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kb / 1024.0)
 }
