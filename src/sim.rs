@@ -1118,3 +1118,150 @@ impl<'a, 'm> Run<'a, 'm> {
         self.out
     }
 }
+
+#[cfg(test)]
+mod tests {
+    //! The event loop's three small structures against plain searches over
+    //! the same values (common practice: a priority structure is checked
+    //! against a linear scan of what it holds).
+
+    use super::*;
+    use rand::Rng;
+
+    /// A reproducible source of test values.
+    fn stream(k: u32) -> Stream {
+        TrialSeed::new(2026, 12).stream(StreamKey::Parameters { part: k })
+    }
+
+    /// A time from a small set, so that exact ties are common, or infinity.
+    fn time(rng: &mut Stream) -> Hours {
+        match rng.next_u64() % 8 {
+            0 => f64::INFINITY,
+            1 => 0.0,
+            k => (k * 250) as f64 + 0.5 * (rng.next_u64() % 2) as f64,
+        }
+    }
+
+    /// The earliest of `events` (time, class) by plain search: the lowest
+    /// time, then class, then unit.
+    fn earliest(events: &[(Hours, u64)]) -> (Hours, u64, usize) {
+        let mut best = (f64::INFINITY, CLASS_DUE, 0);
+        let mut found = false;
+        for (u, &(t, c)) in events.iter().enumerate() {
+            let better = t < best.0 || (t == best.0 && (c < best.1 || (c == best.1 && !found)));
+            if better {
+                best = (t, c, u);
+                found = true;
+            }
+        }
+        best
+    }
+
+    #[test]
+    fn the_tournament_always_holds_the_earliest_unit_event() {
+        for units in [1usize, 2, 3, 5, 8, 13, 64, 100] {
+            let mut rng = stream(units as u32);
+            let mut tourney = Tourney::default();
+            tourney.reset(units);
+            let mut events = vec![(f64::INFINITY, CLASS_DUE); units];
+            assert_eq!(tourney.top(), earliest(&events), "{units} units, fresh");
+            for step in 0..2000 {
+                let u = (rng.next_u64() % units as u64) as usize;
+                let class =
+                    [CLASS_COMPLETION, CLASS_FAILURE, CLASS_DUE][(rng.next_u64() % 3) as usize];
+                let t = time(&mut rng);
+                tourney.set(u, t, class);
+                events[u] = (t, class);
+                let (t_top, c_top, u_top) = tourney.top();
+                let (t_want, c_want, u_want) = earliest(&events);
+                assert_eq!(
+                    (t_top.to_bits(), c_top, u_top),
+                    (t_want.to_bits(), c_want, u_want),
+                    "{units} units, step {step}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn tournament_keys_order_by_time_then_class_then_unit() {
+        let order = [
+            tourney_key(0.0, CLASS_DUE, 9),
+            tourney_key(f64::MIN_POSITIVE, CLASS_COMPLETION, 0),
+            tourney_key(1.0, CLASS_COMPLETION, 5),
+            tourney_key(1.0, CLASS_FAILURE, 0),
+            tourney_key(1.0, CLASS_FAILURE, 1),
+            tourney_key(1.0, CLASS_DUE, 0),
+            tourney_key(1.0 + f64::EPSILON, CLASS_COMPLETION, 0),
+            tourney_key(1e300, CLASS_DUE, 3),
+            tourney_key(f64::INFINITY, CLASS_COMPLETION, 0),
+        ];
+        for w in order.windows(2) {
+            assert!(w[0] < w[1], "{:x} !< {:x}", w[0], w[1]);
+        }
+    }
+
+    #[test]
+    fn the_reading_key_takes_the_earlier_reading_and_a_failure_first() {
+        let readings = [0.0, -0.0, 1.0, 1.5, 2.0, 1e300, f64::INFINITY];
+        for &fail in &readings {
+            for &due in &readings {
+                let k = reading_key(fail, due);
+                let (reading, is_due) = (f64::from_bits(k >> 1), k & 1 == 1);
+                // A failure wins a tie; a negative zero reads as zero.
+                let (want, want_due) = if due < fail {
+                    (due, true)
+                } else {
+                    (fail, false)
+                };
+                assert_eq!(reading, want, "fail {fail}, due {due}");
+                assert_eq!(is_due, want_due, "fail {fail}, due {due}");
+                assert!(reading.is_sign_positive());
+            }
+        }
+        // Across positions, the least key is the earliest reading, then a
+        // failure before a due, whatever the order of the positions.
+        let mut rng = stream(99);
+        for _ in 0..500 {
+            let pos: Vec<(Hours, Hours)> =
+                (0..4).map(|_| (time(&mut rng), time(&mut rng))).collect();
+            let least = pos.iter().map(|&(f, d)| reading_key(f, d)).min().unwrap();
+            let first = pos
+                .iter()
+                .flat_map(|&(f, d)| [(f, 0u8), (d, 1u8)])
+                .min_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)))
+                .unwrap();
+            assert_eq!(f64::from_bits(least >> 1), first.0, "{pos:?}");
+            if first.0.is_finite() {
+                assert_eq!(least & 1, u64::from(first.1), "{pos:?}");
+            }
+        }
+    }
+
+    #[test]
+    fn the_awaited_arrivals_book_knows_the_earliest() {
+        for parts in [1usize, 2, 3, 7] {
+            let mut rng = stream(100 + parts as u32);
+            let mut book = Arrivals::default();
+            book.reset(parts);
+            let mut at = vec![f64::INFINITY; parts];
+            for step in 0..3000 {
+                let p = (rng.next_u64() % parts as u64) as usize;
+                let t = time(&mut rng);
+                book.set(p, t);
+                at[p] = t;
+                // Plain search: the least time, the lower part on a tie.
+                let mut want = (f64::INFINITY, 0);
+                for (q, &x) in at.iter().enumerate() {
+                    if x < want.0 {
+                        want = (x, q);
+                    }
+                }
+                assert_eq!(book.first.0, want.0, "{parts} parts, step {step}");
+                if want.0.is_finite() {
+                    assert_eq!(book.first.1, want.1, "{parts} parts, step {step}");
+                }
+            }
+        }
+    }
+}
