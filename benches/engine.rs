@@ -59,26 +59,17 @@ fn main() {
     let mut events = 0u64;
     let counts: Vec<DrawCounts> = (0..n)
         .map(|t| {
-            events += sim.run(t, &mut ws).events;
-            ws.draw_counts()
+            let o = sim.run(t, &mut ws);
+            events += o.events;
+            ws.draw_counts(&o)
         })
         .collect();
-    let draws: u64 = counts
-        .iter()
-        .map(|c| {
-            c.lives
-                .iter()
-                .chain(&c.leads)
-                .map(|&k| k as u64)
-                .sum::<u64>()
-        })
-        .sum();
 
     // Warm up.
     let _ = evaluate(&model, &policy, 0..500, model.target, &Quiet);
 
     let (mut engine, mut rng) = (Vec::new(), Vec::new());
-    let mut checksum = 0.0;
+    let (mut checksum, mut draws) = (0.0, 0u64);
     let mut availability = (0.0, 0.0);
     for _ in 0..3 {
         // 1. The whole engine, as `wearout evaluate` runs it.
@@ -92,11 +83,11 @@ fn main() {
 
         // 2. Only the random numbers: the same draws, nothing else.
         let t1 = Instant::now();
-        checksum = counts
+        (checksum, draws) = counts
             .par_iter()
             .enumerate()
             .map_init(Vec::new, |lives, (t, c)| sim.draw_only(t as u64, c, lives))
-            .sum::<f64>();
+            .reduce(|| (0.0, 0), |a, b| (a.0 + b.0, a.1 + b.1));
         rng.push(t1.elapsed().as_secs_f64());
     }
     let (engine_s, rng_s) = (median(engine.clone()), median(rng.clone()));

@@ -183,8 +183,6 @@ struct Pos {
     /// Reading at which it reaches its hard life limit (infinite: none).
     limit_op: Hours,
     lives: Stream,
-    /// Lives drawn for this position in this trial (the first included).
-    drawn: u32,
 }
 
 #[derive(Debug, Clone)]
@@ -231,8 +229,6 @@ struct Store {
     /// next used (or at the horizon); while demands wait, the earliest is an
     /// event (in [`Arrivals`]).
     pending: Vec<Hours>,
-    /// Orders placed in this trial.
-    orders: u64,
     /// Orders that arrive at or after the horizon (so the orders on their
     /// way are these and `pending`).
     beyond: u64,
@@ -281,22 +277,28 @@ pub struct Workspace {
     trial_lives: Vec<Life>,
 }
 
-/// How many random draws the last trial run on a [`Workspace`] took: lives
-/// per position (in unit, then position order) and lead times per part type.
-/// For measuring the engine against the bare cost of its random numbers
-/// ([`Simulator::draw_only`]).
+/// What the last trial run on a [`Workspace`] drew: the words taken from
+/// each position's lives stream (in unit, then position order) and the
+/// lead times of each part type's orders. For the engine bench alone, which
+/// times these draws without the engine ([`Simulator::draw_only`]); read
+/// from the streams' positions and the trial's order counts after the run,
+/// so the event loop keeps no counter for it. Not part of the library's
+/// interface.
+#[doc(hidden)]
 #[derive(Debug, Clone, Default, PartialEq, Eq)]
 pub struct DrawCounts {
-    pub lives: Vec<u32>,
+    pub life_words: Vec<u32>,
     pub leads: Vec<u32>,
 }
 
 impl Workspace {
-    /// The draws of the last trial run on this workspace.
-    pub fn draw_counts(&self) -> DrawCounts {
+    /// The draws of the last trial run on this workspace, whose outcome is
+    /// `outcome`. For the engine bench alone.
+    #[doc(hidden)]
+    pub fn draw_counts(&self, outcome: &TrialOutcome) -> DrawCounts {
         DrawCounts {
-            lives: self.pos.iter().map(|p| p.drawn).collect(),
-            leads: self.stores.iter().map(|s| s.orders as u32).collect(),
+            life_words: self.pos.iter().map(|p| p.lives.position() as u32).collect(),
+            leads: outcome.parts.iter().map(|p| p.orders).collect(),
         }
     }
 }
@@ -401,16 +403,20 @@ impl<'m> Simulator<'m> {
 
     /// Draw the random numbers trial `trial` uses, and nothing else: the
     /// trial's lives per part type, every position's initial age, its first
-    /// remaining life and its `counts.lives` - 1 later lives, and each part
-    /// type's `counts.leads` lead times, from the same streams as
-    /// [`Simulator::run`]. Returns their sum, so that the work is not
-    /// optimised away. `counts` comes from [`Workspace::draw_counts`] after
-    /// running the same trial.
-    pub fn draw_only(&self, trial: u64, counts: &DrawCounts, lives: &mut Vec<Life>) -> f64 {
+    /// remaining life and later lives until its stream has given
+    /// `counts.life_words` words, and each part type's `counts.leads` lead
+    /// times, from the same streams as [`Simulator::run`]. Returns their
+    /// sum, so that the work is not optimised away, and the number of
+    /// lives and lead times drawn. `counts` comes from
+    /// [`Workspace::draw_counts`] after running the same trial. For the
+    /// engine bench alone.
+    #[doc(hidden)]
+    pub fn draw_only(&self, trial: u64, counts: &DrawCounts, lives: &mut Vec<Life>) -> (f64, u64) {
         let model = self.model;
         let seed = TrialSeed::new(model.seed, trial);
         self.trial_lives(&seed, lives);
         let mut sum = 0.0;
+        let mut draws = 0;
         let mut ages = seed.stream(StreamKey::InitialAges);
         let mut idx = 0;
         for (u, unit) in model.units.iter().enumerate() {
@@ -418,9 +424,9 @@ impl<'m> Simulator<'m> {
             for (j, &part) in unit.parts.iter().enumerate() {
                 let age =
                     draw_initial_age(&group.initial_age[part], unit.index_in_group, &mut ages);
-                let n = counts.lives.get(idx).copied().unwrap_or(0);
+                let words = u64::from(counts.life_words.get(idx).copied().unwrap_or(0));
                 idx += 1;
-                if n == 0 {
+                if words == 0 {
                     continue;
                 }
                 let mut stream = seed.stream(StreamKey::Lives {
@@ -428,18 +434,22 @@ impl<'m> Simulator<'m> {
                     position: j as u32,
                 });
                 sum += lives[part].sample_residual(age, &mut stream);
-                for _ in 1..n {
+                draws += 1;
+                while stream.position() < words {
                     sum += lives[part].sample_residual(0.0, &mut stream);
+                    draws += 1;
                 }
             }
         }
         for (p, part) in model.parts.iter().enumerate() {
             let mut stream = seed.stream(StreamKey::LeadTimes { part: p as u32 });
-            for _ in 0..counts.leads.get(p).copied().unwrap_or(0) {
+            let n = counts.leads.get(p).copied().unwrap_or(0);
+            for _ in 0..n {
                 sum += part.lead_time.sample(&mut stream);
             }
+            draws += u64::from(n);
         }
-        sum
+        (sum, draws)
     }
 
     /// Like [`Simulator::run`], asserting the model's invariants after every
@@ -522,7 +532,6 @@ impl<'a, 'm> Run<'a, 'm> {
                 s.last = 0.0;
                 s.leads = leads;
                 s.lead_next = LEAD_BATCH;
-                s.orders = 0;
                 s.pending.clear();
                 s.beyond = 0;
             } else {
@@ -535,7 +544,6 @@ impl<'a, 'm> Run<'a, 'm> {
                     leads,
                     lead_buf: [0.0; LEAD_BATCH],
                     lead_next: LEAD_BATCH,
-                    orders: 0,
                     pending: Vec::new(),
                     beyond: 0,
                 });
@@ -572,7 +580,6 @@ impl<'a, 'm> Run<'a, 'm> {
                     due_op,
                     limit_op,
                     lives: lives_stream,
-                    drawn: active as u32,
                 });
                 ws.key_at.push(reading_key(fail_op, due_op.min(limit_op)));
                 ws.done_at.push(f64::INFINITY);
@@ -767,7 +774,6 @@ impl<'a, 'm> Run<'a, 'm> {
     /// Place one resupply order for `part` at `now`.
     fn order(&mut self, part: usize, now: Hours) {
         let s = &mut self.ws.stores[part];
-        s.orders += 1;
         if s.lead_next == LEAD_BATCH {
             // Independent draws overlap when made together; the k-th order
             // still gets the k-th draw of the stream.
@@ -1048,7 +1054,6 @@ impl<'a, 'm> Run<'a, 'm> {
         let part = self.ws.pos[idx].part;
         let op = self.ws.units[u].op;
         let life = self.lives[part].sample_residual(0.0, &mut self.ws.pos[idx].lives);
-        self.ws.pos[idx].drawn += 1;
         let rule: Rule = self.sim.policy[part].rule;
         let limit = self.sim.model.parts[part].hard_limit;
         let p = &mut self.ws.pos[idx];
