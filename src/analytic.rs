@@ -672,6 +672,16 @@ impl PoissonPipeline {
         }
     }
 
+    /// The quantile `q`: the smallest `k` with `P(X <= k) >= q` (searched
+    /// up to 100 000).
+    pub fn quantile(&self, q: f64) -> u32 {
+        let mut k = 0;
+        while self.cdf(k) < q && k < 100_000 {
+            k += 1;
+        }
+        k
+    }
+
     /// `P(X > k)`.
     pub fn sf(&self, k: u32) -> f64 {
         if self.mean == 0.0 {
@@ -1121,6 +1131,24 @@ mod tests {
                 close(p.cdf(s) + p.sf(s), 1.0, 1e-13);
             }
         }
+    }
+
+    #[test]
+    fn poisson_quantiles_match_tables() {
+        // Poisson cumulative table (e.g. CRC Standard Probability and
+        // Statistics Tables; figures from memory, checked by summing the
+        // pmf by hand): mean 2, P(N <= 4) = 0.9473, P(N <= 5) = 0.9834, so
+        // the 95 % quantile is 5 and the 90 % quantile is 4.
+        let two = PoissonPipeline::new(2.0).unwrap();
+        assert_eq!(two.quantile(0.95), 5);
+        assert_eq!(two.quantile(0.90), 4);
+        // Mean 0.5: P(N = 0) = e^-0.5 = 0.6065, so the 50 % quantile is 0.
+        let half = PoissonPipeline::new(0.5).unwrap();
+        assert_eq!(half.quantile(0.5), 0);
+        // Fill rate with s = 1: P(N = 0) = e^-m.
+        close(half.fill_rate(1), (-0.5f64).exp(), 1e-12);
+        // An empty pipeline: every quantile is 0.
+        assert_eq!(PoissonPipeline::new(0.0).unwrap().quantile(0.999), 0);
     }
 
     #[test]

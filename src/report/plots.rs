@@ -19,7 +19,6 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 use super::ReportError;
 use super::view::{
     PolicyView, View, chance_pct, display, hours, money_short, pct_trim, percentiles,
-    poisson_quantile,
 };
 use crate::model::{CostBasis, Rule};
 use crate::result::cost_measure_label;
@@ -996,12 +995,12 @@ pub fn stock(v: &View<'_>) -> Result<String, ReportError> {
             let figs: Vec<(u32, f64, u32, u32)> = chosen
                 .iter()
                 .map(|pv| {
-                    let m = pv.lead_time_demand(model, p);
+                    let pipeline = pv.pipeline(model, p);
                     (
                         pv.policy.parts[p].stock,
-                        m,
-                        poisson_quantile(m, 0.05),
-                        poisson_quantile(m, 0.95),
+                        pv.lead_time_demand(model, p),
+                        pipeline.map_or(0, |x| x.quantile(0.05)),
+                        pipeline.map_or(0, |x| x.quantile(0.95)),
                     )
                 })
                 .collect();

@@ -81,6 +81,14 @@ impl PolicyView<'_> {
         self.demands(p) / model.horizon * model.parts[p].lead_time.mean()
     }
 
+    /// The number of part type `p`'s spares in resupply in the steady
+    /// state: Poisson with mean [`PolicyView::lead_time_demand`] (Palm's
+    /// theorem, whatever the lead-time distribution); `None` if that mean
+    /// is not a number of at least 0.
+    pub fn pipeline(&self, model: &Model, p: usize) -> Option<PoissonPipeline> {
+        PoissonPipeline::new(self.lead_time_demand(model, p)).ok()
+    }
+
     /// Chance that availability reaches at least `level`.
     pub fn chance_at(&self, level: f64) -> f64 {
         self.summary.chance_at(level).value
@@ -226,29 +234,6 @@ fn choose(policies: &[PolicyView<'_>], planner_pick: Option<usize>) -> Vec<usize
 pub fn percentiles(xs: &[f64], ps: &[f64]) -> Vec<f64> {
     let s = sorted(xs);
     ps.iter().map(|&p| percentile_sorted(&s, p)).collect()
-}
-
-/// Poisson quantile: the smallest `k` with `P(N <= k) >= q`, for a
-/// pipeline of mean `m` (Palm's theorem: the number of spares in
-/// resupply under one-for-one ordering is Poisson with mean demand rate x
-/// mean lead time, whatever the lead-time distribution).
-pub fn poisson_quantile(m: f64, q: f64) -> u32 {
-    let Ok(p) = PoissonPipeline::new(m.max(0.0)) else {
-        return 0;
-    };
-    let mut k = 0;
-    while p.cdf(k) < q && k < 100_000 {
-        k += 1;
-    }
-    k
-}
-
-/// The steady-state chance that a demand finds a spare on the shelf with
-/// stock `s` and pipeline mean `m`: `P(N <= s - 1)` (PASTA).
-pub fn poisson_fill_rate(m: f64, s: u32) -> f64 {
-    PoissonPipeline::new(m.max(0.0))
-        .map(|p| p.fill_rate(s))
-        .unwrap_or(f64::NAN)
 }
 
 // ---------------------------------------------------------------------------
@@ -430,19 +415,5 @@ mod tests {
         assert_eq!(num(1234567.0, 0), "1,234,567");
         assert_eq!(count_words(2), "two");
         assert_eq!(count_words(12), "12");
-    }
-
-    #[test]
-    fn poisson_quantiles_match_tables() {
-        // Poisson cumulative table (e.g. CRC Standard Probability and
-        // Statistics Tables; figures from memory, checked by summing the
-        // pmf by hand): mean 2, P(N <= 4) = 0.9473, P(N <= 5) = 0.9834, so
-        // the 95 % quantile is 5 and the 90 % quantile is 4.
-        assert_eq!(poisson_quantile(2.0, 0.95), 5);
-        assert_eq!(poisson_quantile(2.0, 0.90), 4);
-        // Mean 0.5: P(N = 0) = e^-0.5 = 0.6065, so the 50 % quantile is 0.
-        assert_eq!(poisson_quantile(0.5, 0.5), 0);
-        // Fill rate with s = 1: P(N = 0) = e^-m.
-        assert!((poisson_fill_rate(0.5, 1) - (-0.5f64).exp()).abs() < 1e-12);
     }
 }

@@ -9,7 +9,7 @@
 use super::doc::{Align, Block, Figure, Span, b, c, t};
 use super::view::{
     Kind, LEVELS, PolicyView, View, chance_pct, count_words, display, hours, lead_time_words,
-    money, money_short, num, pct_trim, pct1, poisson_fill_rate, rule_short, rule_words, trim,
+    money, money_short, num, pct_trim, pct1, rule_short, rule_words, trim,
 };
 use crate::model::{CostBasis, CostStatistic, Model, Rule};
 
@@ -725,6 +725,7 @@ fn part_table(v: &View<'_>) -> Block {
                 None => "-".into(),
             };
             let ltd = pv.lead_time_demand(model, p);
+            let pipeline = pv.pipeline(model, p);
             let demands = pv.demands(p);
             let served = if demands > 0.0 {
                 chance_pct(1.0 - m.stockouts.mean() / demands)
@@ -744,11 +745,11 @@ fn part_table(v: &View<'_>) -> Block {
                 format!(
                     "{} (95\u{a0}%:\u{a0}{})",
                     num(ltd, 2),
-                    super::view::poisson_quantile(ltd, 0.95)
+                    pipeline.map_or(0, |x| x.quantile(0.95))
                 ),
                 format!(
                     "{} / {served}",
-                    chance_pct(poisson_fill_rate(ltd, pp.stock))
+                    chance_pct(pipeline.map_or(f64::NAN, |x| x.fill_rate(pp.stock)))
                 ),
                 format!(
                     "{} / {}",
