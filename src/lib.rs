@@ -21,4 +21,5 @@ pub mod shard;
 pub mod sim;
 pub mod stream;
 pub mod summary;
+pub mod text;
 pub mod uncertainty;

@@ -152,6 +152,16 @@ impl Rule {
         }
     }
 
+    /// Compact form for tables: `RTF`, `A11200`, `B6000` (hours with one
+    /// decimal when not whole).
+    pub fn short(&self) -> String {
+        match *self {
+            Rule::RunToFailure => "RTF".to_string(),
+            Rule::Age(t) => format!("A{}", fmt_hours(t)),
+            Rule::Block(t) => format!("B{}", fmt_hours(t)),
+        }
+    }
+
     /// Human-readable form, e.g. `age 11200 h`.
     pub fn describe(&self) -> String {
         match *self {
@@ -201,14 +211,7 @@ impl Policy {
         self.parts
             .iter()
             .zip(&model.parts)
-            .map(|(p, t)| {
-                let rule = match p.rule {
-                    Rule::RunToFailure => "RTF".to_string(),
-                    Rule::Age(x) => format!("A{}", fmt_hours(x)),
-                    Rule::Block(x) => format!("B{}", fmt_hours(x)),
-                };
-                format!("{} {} S{}", t.name, rule, p.stock)
-            })
+            .map(|(p, t)| format!("{} {} S{}", t.name, p.rule.short(), p.stock))
             .collect::<Vec<_>>()
             .join("; ")
     }

@@ -3,10 +3,11 @@
 use std::io::Write;
 use std::path::Path;
 
-use super::text::{money, num, pct2, table};
+use super::text::{pct2, table};
 use super::{UserError, io};
 use crate::averages::plan_on_averages;
 use crate::scenario::load_or_demo;
+use crate::text::{money, num};
 
 pub fn run(file: Option<&Path>, out: &mut dyn Write) -> Result<(), UserError> {
     let (model, shown) = load_or_demo(file)?;

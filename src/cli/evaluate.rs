@@ -4,18 +4,14 @@ use std::io::Write;
 use std::path::Path;
 
 use super::progress::Bar;
-use super::text::{money, num, pct, pct2, table};
+use super::text::{pct, pct2, table};
 use super::{RunOpts, UserError, check_target, io};
 use crate::averages::plan_on_averages;
 use crate::model::Model;
 use crate::result::EvaluateJson;
 use crate::run::evaluate;
 use crate::scenario::load_or_demo;
-
-/// The caution printed with every result.
-pub const CAUTION: &str = "Decision support only: these figures come from a model of your fleet. They do not replace \
-regulator-approved maintenance programmes, manufacturers' hard life limits, local codes or the judgement of licensed \
-engineers. Safety-critical parts are never planned to run to failure.";
+use crate::text::{CAUTION, money, num};
 
 pub fn run(
     file: Option<&Path>,

@@ -4,14 +4,14 @@
 use std::io::Write;
 use std::path::Path;
 
-use super::evaluate::CAUTION;
 use super::progress::Bar;
-use super::text::{money, num, pct, table};
+use super::text::{pct, table};
 use super::{RunOpts, UserError, check_target, io};
-use crate::frontier::{FrontierConfig, FrontierResult, search};
-use crate::model::{Model, Rule};
+use crate::frontier::{FrontierConfig, FrontierResult, NoiseFlags, search};
+use crate::model::Model;
 use crate::result::{FrontierJson, cost_measure_label};
 use crate::scenario::load_or_demo;
+use crate::text::{CAUTION, money, num};
 
 /// What the command line asked of a frontier run.
 pub struct FrontierArgs<'a> {
@@ -95,15 +95,6 @@ pub fn run(
     })
 }
 
-/// Compact rule: `A11200`, `B6000`, `RTF`.
-fn short_rule(r: Rule) -> String {
-    match r {
-        Rule::RunToFailure => "RTF".into(),
-        Rule::Age(t) => format!("A{}", num(t, 0).replace(',', "")),
-        Rule::Block(t) => format!("B{}", num(t, 0).replace(',', "")),
-    }
-}
-
 /// The readable frontier table.
 pub fn render(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     let cur = if model.currency.is_empty() {
@@ -157,17 +148,9 @@ pub fn render(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
             money(c.summary.initial_stock_capital),
         ];
         for pp in &c.policy.parts {
-            row.push(format!("{} S{}", short_rule(pp.rule), pp.stock));
+            row.push(format!("{} S{}", pp.rule.short(), pp.stock));
         }
-        row.push(match pt.noise {
-            None => "-".into(),
-            Some(n) => match (n.chance_within_noise, n.cost_within_noise) {
-                (true, true) => "same within noise".into(),
-                (true, false) => "chance same within noise".into(),
-                (false, true) => "cost same within noise".into(),
-                (false, false) => "differs".into(),
-            },
-        });
+        row.push(pt.noise.as_ref().map_or("-", NoiseFlags::words).to_string());
         rows.push(row);
     }
     s.push_str(&table(&rows));

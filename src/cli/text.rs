@@ -1,34 +1,5 @@
-//! Number formatting for tables people read.
-
-/// A number with thousands separators and `decimals` decimals: 1,234,567.8.
-pub fn num(x: f64, decimals: usize) -> String {
-    if !x.is_finite() {
-        return format!("{x}");
-    }
-    let s = format!("{:.*}", decimals, x.abs());
-    let (int, frac) = match s.find('.') {
-        Some(i) => (&s[..i], &s[i..]),
-        None => (s.as_str(), ""),
-    };
-    let mut out = String::new();
-    for (i, c) in int.chars().enumerate() {
-        if i > 0 && (int.len() - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(c);
-    }
-    let sign = if x < 0.0 && s.chars().any(|c| c != '0' && c != '.') {
-        "-"
-    } else {
-        ""
-    };
-    format!("{sign}{out}{frac}")
-}
-
-/// Money: whole units with separators.
-pub fn money(x: f64) -> String {
-    num(x, 0)
-}
+//! Terminal tables: percentages and padded columns (numbers and money
+//! come from `crate::text`).
 
 /// A share as a percentage with one decimal: 91.4 %.
 pub fn pct(x: f64) -> String {
@@ -67,16 +38,4 @@ pub fn table(rows: &[Vec<String>]) -> String {
         out.push('\n');
     }
     out
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn separators() {
-        assert_eq!(num(1234567.891, 1), "1,234,567.9");
-        assert_eq!(num(-999.0, 0), "-999");
-        assert_eq!(num(12.0, 0), "12");
-    }
 }

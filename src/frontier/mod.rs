@@ -113,6 +113,19 @@ pub struct NoiseFlags {
     pub cost_diff: MeanSe,
 }
 
+impl NoiseFlags {
+    /// The comparison in words, for tables: `same within noise`, `chance
+    /// same within noise`, `cost same within noise` or `differs`.
+    pub fn words(&self) -> &'static str {
+        match (self.chance_within_noise, self.cost_within_noise) {
+            (true, true) => "same within noise",
+            (true, false) => "chance same within noise",
+            (false, true) => "cost same within noise",
+            (false, false) => "differs",
+        }
+    }
+}
+
 /// One row of the reported frontier.
 #[derive(Debug, Clone)]
 pub struct FrontierPoint {

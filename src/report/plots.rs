@@ -867,7 +867,7 @@ pub fn life(v: &View<'_>) -> Result<String, ReportError> {
             chart
                 .configure_mesh()
                 .x_desc("Age (operating hours)")
-                .x_label_formatter(&|x| super::view::num(*x, 0))
+                .x_label_formatter(&|x| crate::text::num(*x, 0))
                 .y_label_formatter(&|y| format!("{:.0} %", 100.0 * y))
                 .bold_line_style(GRID.stroke_width(1))
                 .max_light_lines(0)

@@ -12,6 +12,7 @@ use crate::dist::LeadTime;
 use crate::frontier::NoiseFlags;
 use crate::model::{CostBasis, CostMeasure, Model, Policy, Rule};
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
+use crate::text::num;
 
 /// Chance levels the words and the level table speak of.
 pub const LEVELS: [f64; 7] = [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99];
@@ -239,36 +240,6 @@ pub fn percentiles(xs: &[f64], ps: &[f64]) -> Vec<f64> {
 // ---------------------------------------------------------------------------
 // Formats
 // ---------------------------------------------------------------------------
-
-/// A number with thousands separators and `decimals` decimals.
-pub fn num(x: f64, decimals: usize) -> String {
-    if !x.is_finite() {
-        return "-".to_string();
-    }
-    let s = format!("{:.*}", decimals, x.abs());
-    let (int, frac) = match s.find('.') {
-        Some(i) => (&s[..i], &s[i..]),
-        None => (s.as_str(), ""),
-    };
-    let mut out = String::new();
-    for (i, ch) in int.chars().enumerate() {
-        if i > 0 && (int.len() - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(ch);
-    }
-    let sign = if x < 0.0 && s.chars().any(|ch| ch != '0' && ch != '.') {
-        "-"
-    } else {
-        ""
-    };
-    format!("{sign}{out}{frac}")
-}
-
-/// Money in whole units with separators: `2,791,450`.
-pub fn money(x: f64) -> String {
-    num(x, 0)
-}
 
 /// Money in short form: `2.79 M`, `18.5 k`, `950`.
 pub fn money_short(x: f64) -> String {

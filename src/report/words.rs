@@ -9,16 +9,11 @@
 use super::doc::{Align, Block, Figure, Span, b, c, t};
 use super::view::{
     Kind, LEVELS, PolicyView, View, chance_pct, count_words, display, hours, lead_time_words,
-    money, money_short, num, pct_trim, pct1, rule_short, rule_words, trim,
+    money_short, pct_trim, pct1, rule_short, rule_words, trim,
 };
+use crate::frontier::NoiseFlags;
 use crate::model::{CostBasis, CostStatistic, Model, Rule};
-
-/// The caution every report carries.
-pub const CAUTION: &str = "wearout is decision support only. Its figures come from a model of the \
-fleet and are only as good as the lives, lead times and costs it was given. Regulator-approved \
-maintenance programmes, manufacturers' hard life limits, local codes and the judgement of \
-licensed engineers come first: no figure here overrides them. Safety-critical parts are never \
-planned to run to failure.";
+use crate::text::{CAUTION, money, num};
 
 /// The model's rules in one paragraph.
 pub const RULES: &str = "Each trial is one possible future of the whole fleet over the horizon; \
@@ -787,14 +782,9 @@ fn part_table(v: &View<'_>) -> Block {
     }
 }
 
-/// A part type's setting in a table cell: `RTF S1`, `A8,000 S2`.
+/// A part type's setting in a table cell: `RTF S1`, `A8000 S2`.
 fn compact(pp: crate::model::PartPolicy) -> String {
-    let rule = match pp.rule {
-        Rule::RunToFailure => "RTF".to_string(),
-        Rule::Age(t) => format!("A{}", num(t, 0)),
-        Rule::Block(t) => format!("B{}", num(t, 0)),
-    };
-    format!("{rule}\u{a0}S{}", pp.stock)
+    format!("{}\u{a0}S{}", pp.rule.short(), pp.stock)
 }
 
 /// Every reported policy in two tables: the figures, then the settings.
@@ -825,15 +815,7 @@ fn all_policies(v: &View<'_>) -> Vec<Block> {
                     pct1(p.plan.availability),
                     if p.plan.meets_target { "met" } else { "missed" }
                 ),
-                match p.noise {
-                    None => "-".into(),
-                    Some(n) => match (n.chance_within_noise, n.cost_within_noise) {
-                        (true, true) => "same within noise".into(),
-                        (true, false) => "chance same within noise".into(),
-                        (false, true) => "cost same within noise".into(),
-                        (false, false) => "differs".into(),
-                    },
-                },
+                p.noise.as_ref().map_or("-", NoiseFlags::words).to_string(),
             ]
         })
         .collect();
