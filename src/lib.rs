@@ -8,6 +8,7 @@ pub mod averages;
 pub mod cli;
 pub mod dist;
 pub mod estimate;
+pub mod files;
 pub mod fit;
 pub mod frontier;
 pub mod model;

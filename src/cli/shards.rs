@@ -6,18 +6,18 @@
 //!
 //! Owns: the glue between the command line, the files and `shard`,
 //! `recost` and `estimate`.
-//! May use: every library module; files through `interrupt::TempOut`.
+//! May use: every library module; files through `files::TempFile`.
 
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
 use super::frontier::FrontierArgs;
-use super::interrupt::TempOut;
 use super::progress::Bar;
 use super::{RunOpts, UserError, check_target, io};
 use crate::averages::plan_on_averages;
 use crate::estimate::{self, Estimate};
+use crate::files::TempFile;
 use crate::frontier::FrontierResult;
 use crate::model::{Model, Policy};
 use crate::result::{EvaluateJson, FrontierJson};
@@ -149,11 +149,15 @@ fn write_file(
     );
     guard(model, &est)?;
     let bar = Bar::new("shard", trials.saturating_mul(policies.len() as u64));
-    let mut file = TempOut::create(path)?;
+    let cannot = |e: std::io::Error| UserError(format!("cannot write {}: {e}", path.display()));
+    let mut file = TempFile::create(path).map_err(cannot)?;
     let written = shard::write_shard(header, model, policies, &bar, file.writer())
         .map_err(|e| UserError(e.to_string()))?;
     bar.finish();
-    file.commit()?;
+    if super::interrupt::cancelled() {
+        return Err(UserError("interrupted".into()));
+    }
+    file.commit().map_err(cannot)?;
     let per_policy = if policies.len() > 1 {
         format!(" x {} policies", policies.len())
     } else {
