@@ -18,7 +18,8 @@ use common::peak_rss_mb;
 
 use wearout::model::Model;
 use wearout::run::{Quiet, evaluate};
-use wearout::shard::{self, RunKind, ShardHeader, ShardSpec, Source};
+use wearout::scenario::Source;
+use wearout::shard::{self, RunKind, ShardHeader, ShardSpec};
 
 fn b1_with(trucks: usize, horizon: f64) -> (Model, String) {
     let text = common::scenario_text("b1")

@@ -34,7 +34,6 @@
 use std::fmt;
 use std::io::{BufRead, BufReader, Read, Seek, SeekFrom, Write};
 use std::ops::Range;
-use std::path::Path;
 use std::time::Instant;
 
 use serde::{Deserialize, Serialize};
@@ -43,6 +42,7 @@ use sha2::{Digest, Sha256};
 use crate::model::{Model, PartPolicy, Policy, Rule};
 use crate::outcome::{PartOutcome, TrialOutcome};
 use crate::run::{BLOCK, Progress, for_each_trial};
+use crate::scenario::{Loaded, Source};
 use crate::sim::Simulator;
 
 /// The first word of every shard file.
@@ -336,17 +336,6 @@ pub struct CodecRecord {
     pub parts: Vec<[String; 3]>,
 }
 
-/// Where the scenario of a run came from.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Source {
-    /// The path as given (`None`: the embedded demo).
-    pub file: Option<String>,
-    /// The absolute folder of the file, for the records files it names.
-    pub dir: Option<String>,
-    /// The scenario text as read.
-    pub text: String,
-}
-
 /// Everything a shard says about the run it is a share of.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ShardHeader {
@@ -415,6 +404,15 @@ impl ShardHeader {
             first: r.start,
             end: r.end,
             codec: Codec::new(model).record(),
+        }
+    }
+
+    /// The scenario as the shard embeds it.
+    pub fn source(&self) -> Source {
+        Source {
+            file: self.scenario_file.clone(),
+            dir: self.scenario_dir.clone(),
+            text: self.scenario_text.clone(),
         }
     }
 
@@ -1307,30 +1305,19 @@ pub fn plan(shards: &[ShardInfo], this_version: &str) -> Result<Vec<usize>, Merg
 /// (records files it names are read from the scenario's folder), with the
 /// shard's seed and parameter-uncertainty setting, and check it against the
 /// shard's content hash. With `given` (a scenario file named on the command
-/// line: its label, text and folder) that file is read instead.
+/// line, loaded) that scenario is checked instead.
 ///
 /// # Errors
 /// When the text no longer parses or gives another model.
-pub fn model_for(
-    info: &ShardInfo,
-    given: Option<(&str, &str, Option<&Path>)>,
-) -> Result<Model, MergeError> {
+pub fn model_for(info: &ShardInfo, given: Option<&Loaded>) -> Result<Model, MergeError> {
     let h = &info.header;
-    let parsed = match given {
-        Some((label, text, base)) => crate::scenario::parse_with_base(label, text, base),
-        None => match &h.scenario_file {
-            Some(f) => crate::scenario::parse_with_base(
-                f,
-                &h.scenario_text,
-                Some(Path::new(h.scenario_dir.as_deref().unwrap_or("."))),
-            ),
-            None => crate::scenario::parse(crate::scenario::DEMO_FILE, &h.scenario_text),
-        },
+    let mut model = match given {
+        Some(loaded) => loaded.model.clone(),
+        None => h.source().parse().map_err(|e| MergeError::Scenario {
+            file: info.file.clone(),
+            why: e.to_string(),
+        })?,
     };
-    let mut model = parsed.map_err(|e| MergeError::Scenario {
-        file: info.file.clone(),
-        why: e.to_string(),
-    })?;
     model.seed = h.seed;
     model.parameter_uncertainty = h.parameter_uncertainty;
     let found = scenario_hash(&model);
@@ -1407,10 +1394,7 @@ impl Merger {
     ///
     /// # Errors
     /// As [`plan`] and [`model_for`].
-    pub fn new(
-        infos: Vec<ShardInfo>,
-        given: Option<(&str, &str, Option<&Path>)>,
-    ) -> Result<Self, MergeError> {
+    pub fn new(infos: Vec<ShardInfo>, given: Option<&Loaded>) -> Result<Self, MergeError> {
         let order = plan(&infos, TOOL_VERSION)?;
         let first = &infos[order[0]];
         let model = model_for(first, given)?;

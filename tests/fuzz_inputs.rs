@@ -32,7 +32,8 @@ use proptest::test_runner::{Config, RngAlgorithm, TestCaseError, TestRng, TestRu
 use common::scenario_text as shipped;
 use wearout::model::Model;
 use wearout::run::Quiet;
-use wearout::shard::{self, Merger, RunKind, ShardHeader, ShardSpec, Source};
+use wearout::scenario::Source;
+use wearout::shard::{self, Merger, RunKind, ShardHeader, ShardSpec};
 
 // ------------------------------------------------------------ mutations
 

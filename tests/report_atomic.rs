@@ -21,7 +21,9 @@ use wearout::run::{Quiet, evaluate};
 
 /// An evaluate report of the demo's first policy with `seed` and `n` trials.
 fn report(seed: u64, n: u64) -> Report {
-    let (mut model, _): (Model, _) = wearout::scenario::load_or_demo(None).expect("demo loads");
+    let mut model: Model = wearout::scenario::load_or_demo(None)
+        .expect("demo loads")
+        .model;
     model.seed = seed;
     let policy = model.policies[0].clone();
     let summary = evaluate(&model, &policy, 0..n, model.target, &Quiet).expect("runs");

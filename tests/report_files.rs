@@ -28,7 +28,9 @@ use wearout::run::Quiet;
 fn demo() -> &'static (Model, FrontierResult, FrontierJson) {
     static RUN: OnceLock<(Model, FrontierResult, FrontierJson)> = OnceLock::new();
     RUN.get_or_init(|| {
-        let (model, _) = wearout::scenario::load_or_demo(None).expect("demo loads");
+        let model = wearout::scenario::load_or_demo(None)
+            .expect("demo loads")
+            .model;
         let config = FrontierConfig {
             screen_trials: 200,
             ..FrontierConfig::new(200, 400, model.target)

@@ -7,20 +7,22 @@
 //! computation of the same thing: the single-process run over the same
 //! trials (`run::evaluate`), which never touches the shard code.
 
+mod common;
+
 use std::io::Cursor;
 use std::path::Path;
 
 use wearout::model::{Model, Policy};
 use wearout::result::{EvaluateJson, FrontierJson};
 use wearout::run::{Quiet, evaluate};
+use wearout::scenario::Source;
 use wearout::shard::{
-    self, MergeError, Merged, Merger, RunKind, ShardError, ShardHeader, ShardSpec, Source,
+    self, MergeError, Merged, Merger, RunKind, ShardError, ShardHeader, ShardSpec,
 };
 
 fn scenario(name: &str) -> (Model, Source) {
-    let path = format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"));
-    let text = std::fs::read_to_string(&path).expect("shipped scenario");
-    from_text(&path, &text)
+    let loaded = wearout::scenario::load(Path::new(&common::scenario_path(name))).expect("valid");
+    (loaded.model, loaded.source)
 }
 
 fn from_text(path: &str, text: &str) -> (Model, Source) {
@@ -285,7 +287,7 @@ fn refused(files: &[(String, Vec<u8>)], needles: &[&str]) -> String {
 #[test]
 fn refuses_different_scenarios() {
     let (m1, s1) = scenario("b1");
-    let path = format!("{}/scenarios/b1.toml", env!("CARGO_MANIFEST_DIR"));
+    let path = common::scenario_path("b1");
     let changed = s1.text.replacen("price = 180000", "price = 180001", 1);
     assert_ne!(changed, s1.text);
     let (m2, s2) = from_text(&path, &changed);

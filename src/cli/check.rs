@@ -10,7 +10,8 @@ use crate::scenario::load_or_demo;
 use crate::text::{money, num};
 
 pub fn run(file: Option<&Path>, out: &mut dyn Write) -> Result<(), UserError> {
-    let (model, shown) = load_or_demo(file)?;
+    let loaded = load_or_demo(file)?;
+    let (model, shown) = (&loaded.model, loaded.source.label());
     let mut s = String::new();
     s.push_str(&format!("{shown}: valid scenario `{}`\n", model.name));
     if !model.description.is_empty() {
@@ -67,12 +68,12 @@ pub fn run(file: Option<&Path>, out: &mut dyn Write) -> Result<(), UserError> {
         "rules and stock".into(),
     ]];
     for p in &model.policies {
-        let plan = plan_on_averages(&model, p);
+        let plan = plan_on_averages(model, p);
         rows.push(vec![
             p.name.clone(),
             pct2(plan.availability),
             money(plan.cost),
-            p.describe(&model),
+            p.describe(model),
         ]);
     }
     s.push_str(&table(&rows));

@@ -21,7 +21,8 @@ pub fn run(
     report: Option<Option<&Path>>,
     out: &mut dyn Write,
 ) -> Result<(), UserError> {
-    let (mut model, _shown) = load_or_demo(file)?;
+    let loaded = load_or_demo(file)?;
+    let mut model = loaded.model;
     opts.apply(&mut model);
     let target = check_target(opts.target, model.target)?;
     let trials = trials.unwrap_or(model.trials);
@@ -54,7 +55,15 @@ pub fn run(
                 "--report does not go with --shard/--out: pass --report to `wearout merge`".into(),
             ));
         }
-        return super::shards::evaluate_shard(file, &model, &pol, trials, target, opts, out);
+        return super::shards::evaluate_shard(
+            &loaded.source,
+            &model,
+            &pol,
+            trials,
+            target,
+            opts,
+            out,
+        );
     }
     super::shards::guard_evaluate(&model, &pol, trials)?;
     let bar = Bar::new("evaluate", trials);

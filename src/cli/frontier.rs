@@ -32,7 +32,7 @@ pub fn compute(
     if let Some(p) = args.policies {
         return super::shards::compute_fixed(args, opts, p);
     }
-    let (mut model, _shown) = load_or_demo(args.file)?;
+    let mut model = load_or_demo(args.file)?.model;
     opts.apply(&mut model);
     let target = check_target(opts.target, model.target)?;
     let space = model.search.as_ref().ok_or_else(|| {

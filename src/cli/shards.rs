@@ -21,7 +21,8 @@ use crate::files::TempFile;
 use crate::frontier::FrontierResult;
 use crate::model::{Model, Policy};
 use crate::result::{EvaluateJson, FrontierJson};
-use crate::shard::{self, Merged, Merger, RunKind, ShardHeader, ShardSpec, Source};
+use crate::scenario::{Loaded, Source};
+use crate::shard::{self, Merged, Merger, RunKind, ShardHeader, ShardSpec};
 
 /// The memory this machine has available (Linux `MemAvailable`), if known.
 pub(crate) fn available_memory() -> Option<f64> {
@@ -52,58 +53,6 @@ pub(crate) fn guard_evaluate(model: &Model, policy: &Policy, trials: u64) -> Res
         false,
     );
     guard(model, &est)
-}
-
-/// A scenario file's text and the folder its relative paths start from.
-fn read_scenario(p: &Path) -> Result<(String, std::path::PathBuf), UserError> {
-    let text = std::fs::read_to_string(p)
-        .map_err(|e| UserError(format!("cannot read scenario file {}: {e}", p.display())))?;
-    let dir = p
-        .parent()
-        .filter(|d| !d.as_os_str().is_empty())
-        .unwrap_or(Path::new("."))
-        .to_path_buf();
-    Ok((text, dir))
-}
-
-/// The scenario's source (text and folder) for a shard header, checked to
-/// give the model that was loaded.
-fn source_of(file: Option<&Path>, model: &Model) -> Result<Source, UserError> {
-    let source = match file {
-        None => Source {
-            file: None,
-            dir: None,
-            text: crate::scenario::DEMO.to_string(),
-        },
-        Some(p) => {
-            let (text, dir) = read_scenario(p)?;
-            let dir = std::fs::canonicalize(&dir).unwrap_or(dir);
-            Source {
-                file: Some(p.display().to_string()),
-                dir: Some(dir.display().to_string()),
-                text,
-            }
-        }
-    };
-    // The text as read now must give the model as loaded (the file may
-    // have changed in between).
-    let label = source
-        .file
-        .clone()
-        .unwrap_or_else(|| crate::scenario::DEMO_FILE.to_string());
-    let mut again = crate::scenario::parse_with_base(
-        &label,
-        &source.text,
-        source.dir.as_deref().map(Path::new),
-    )?;
-    again.seed = model.seed;
-    again.parameter_uncertainty = model.parameter_uncertainty;
-    if shard::scenario_hash(&again) != shard::scenario_hash(model) {
-        return Err(UserError(format!(
-            "{label} changed while it was being read; run again"
-        )));
-    }
-    Ok(source)
 }
 
 /// The shard asked for: `--shard K/N` (default the whole run) and `--out`.
@@ -187,7 +136,7 @@ fn write_file(
 
 /// `wearout evaluate ... --shard K/N --out FILE`.
 pub(crate) fn evaluate_shard(
-    file: Option<&Path>,
+    source: &Source,
     model: &Model,
     policy: &Policy,
     trials: u64,
@@ -196,10 +145,9 @@ pub(crate) fn evaluate_shard(
     out: &mut dyn Write,
 ) -> Result<(), UserError> {
     let (spec, path) = shard_request(opts)?;
-    let source = source_of(file, model)?;
     let header = ShardHeader::new(
         model,
-        &source,
+        source,
         RunKind::Evaluate,
         std::slice::from_ref(policy),
         0..trials,
@@ -214,9 +162,10 @@ fn fixed_setup(
     args: &FrontierArgs<'_>,
     opts: &RunOpts,
     policies_file: &Path,
-) -> Result<(Model, Vec<Policy>, u64, f64), UserError> {
-    let (mut model, _shown) = crate::scenario::load_or_demo(args.file)?;
-    opts.apply(&mut model);
+) -> Result<(Loaded, Vec<Policy>, u64, f64), UserError> {
+    let mut loaded = crate::scenario::load_or_demo(args.file)?;
+    let model = &mut loaded.model;
+    opts.apply(model);
     let target = check_target(opts.target, model.target)?;
     if args.exhaustive || args.trials.is_some() {
         return Err(UserError(
@@ -230,7 +179,7 @@ fn fixed_setup(
         ))
     })?;
     let policies =
-        crate::recost::parse_policies(&model, &policies_file.display().to_string(), &text)?;
+        crate::recost::parse_policies(model, &policies_file.display().to_string(), &text)?;
     let validate = args
         .validate_trials
         .or(model.search.as_ref().map(|s| s.validate_trials))
@@ -238,7 +187,7 @@ fn fixed_setup(
     if validate == 0 {
         return Err(UserError("--validate-trials must be at least 1".into()));
     }
-    Ok((model, policies, validate, target))
+    Ok((loaded, policies, validate, target))
 }
 
 /// `wearout frontier --policies FILE.json`: re-cost a fixed list of
@@ -249,7 +198,8 @@ pub(crate) fn compute_fixed(
     opts: &RunOpts,
     policies_file: &Path,
 ) -> Result<(Model, FrontierResult, FrontierJson), UserError> {
-    let (model, policies, validate, target) = fixed_setup(args, opts, policies_file)?;
+    let (loaded, policies, validate, target) = fixed_setup(args, opts, policies_file)?;
+    let model = loaded.model;
     let est = estimate::evaluate(
         &model,
         &policies,
@@ -288,8 +238,8 @@ pub(crate) fn frontier_shard(
     out: &mut dyn Write,
 ) -> Result<(), UserError> {
     let (spec, path) = shard_request(opts)?;
-    let (model, policies, validate, target) = fixed_setup(args, opts, policies_file)?;
-    let source = source_of(args.file, &model)?;
+    let (Loaded { model, source }, policies, validate, target) =
+        fixed_setup(args, opts, policies_file)?;
     let header = ShardHeader::new(
         &model,
         &source,
@@ -331,19 +281,12 @@ pub fn merge_files(args: &MergeArgs) -> Result<Merged, UserError> {
     if infos.is_empty() {
         return Err(shard::MergeError::NoShards.into());
     }
-    let given = match &args.scenario {
-        Some(p) => {
-            let (text, dir) = read_scenario(p)?;
-            Some((p.display().to_string(), text, dir))
-        }
-        None => None,
-    };
-    let merger = Merger::new(
-        infos,
-        given
-            .as_ref()
-            .map(|(l, t, d)| (l.as_str(), t.as_str(), Some(d.as_path()))),
-    )?;
+    let given = args
+        .scenario
+        .as_deref()
+        .map(crate::scenario::load)
+        .transpose()?;
+    let merger = Merger::new(infos, given.as_ref())?;
     guard(
         &merger.model,
         &estimate::merge(

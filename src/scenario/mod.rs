@@ -22,7 +22,7 @@ use crate::model::{
     PartType, Policy, Position, Rule, SearchSpace, UnitType,
 };
 use crate::uncertainty::LifeUncertainty;
-use tree::{Source, Tbl, Val, each};
+use tree::{Tbl, Text, Val, each};
 
 pub use tree::suggest;
 
@@ -52,11 +52,62 @@ pub enum LoadError {
     Invalid(#[from] ScenarioError),
 }
 
-/// Load and validate a scenario file.
+/// Where a scenario came from, with its text as it was read: what a shard
+/// file embeds so that a merge can rebuild the model anywhere.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Source {
+    /// The path as given (`None`: the embedded demo).
+    pub file: Option<String>,
+    /// The absolute folder of the file, for the records files it names.
+    pub dir: Option<String>,
+    /// The scenario text as read.
+    pub text: String,
+}
+
+impl Source {
+    /// The embedded demo's source.
+    pub fn demo() -> Self {
+        Source {
+            file: None,
+            dir: None,
+            text: DEMO.to_string(),
+        }
+    }
+
+    /// The name the scenario is reported under: its path as given, or
+    /// [`DEMO_FILE`].
+    pub fn label(&self) -> &str {
+        self.file.as_deref().unwrap_or(DEMO_FILE)
+    }
+
+    /// Parse and validate the text again, records files read from `dir`.
+    ///
+    /// # Errors
+    /// As [`parse_with_base`].
+    pub fn parse(&self) -> Result<Model, ScenarioError> {
+        match &self.file {
+            Some(f) => parse_with_base(
+                f,
+                &self.text,
+                Some(Path::new(self.dir.as_deref().unwrap_or("."))),
+            ),
+            None => parse(DEMO_FILE, &self.text),
+        }
+    }
+}
+
+/// A scenario loaded: the validated model and where it came from.
+#[derive(Debug, Clone)]
+pub struct Loaded {
+    pub model: Model,
+    pub source: Source,
+}
+
+/// Load and validate a scenario file, keeping its text.
 ///
 /// # Errors
 /// When the file cannot be read or is not a valid scenario.
-pub fn load(path: &Path) -> Result<Model, LoadError> {
+pub fn load(path: &Path) -> Result<Loaded, LoadError> {
     let file = path.display().to_string();
     let bytes = std::fs::read(path).map_err(|e| LoadError::Unreadable {
         file: file.clone(),
@@ -67,17 +118,39 @@ pub fn load(path: &Path) -> Result<Model, LoadError> {
         reason: "it is not UTF-8 text".to_string(),
     })?;
     let base = path.parent().unwrap_or(Path::new(""));
-    Ok(parse_with_base(&file, &text, Some(base))?)
+    let model = parse_with_base(&file, &text, Some(base))?;
+    // The folder as an absolute path, so that a shard merged elsewhere
+    // still finds the records files the scenario names.
+    let dir = if base.as_os_str().is_empty() {
+        Path::new(".")
+    } else {
+        base
+    };
+    let dir = std::fs::canonicalize(dir).unwrap_or_else(|_| dir.to_path_buf());
+    Ok(Loaded {
+        model,
+        source: Source {
+            file: Some(file),
+            dir: Some(dir.display().to_string()),
+            text,
+        },
+    })
 }
 
 /// Load a scenario file, or the embedded demo when `path` is `None`.
 ///
 /// # Errors
 /// As [`load`].
-pub fn load_or_demo(path: Option<&Path>) -> Result<(Model, String), LoadError> {
+pub fn load_or_demo(path: Option<&Path>) -> Result<Loaded, LoadError> {
     match path {
-        Some(p) => load(p).map(|m| (m, p.display().to_string())),
-        None => Ok((parse(DEMO_FILE, DEMO)?, DEMO_FILE.to_string())),
+        Some(p) => load(p),
+        None => {
+            let source = Source::demo();
+            Ok(Loaded {
+                model: source.parse()?,
+                source,
+            })
+        }
     }
 }
 
@@ -102,7 +175,7 @@ pub fn parse_with_base(
     text: &str,
     base: Option<&Path>,
 ) -> Result<Model, ScenarioError> {
-    let src = Source { file, text };
+    let src = Text { file, text };
     let doc = DeTable::parse(text).map_err(|e| {
         let span = e.span().unwrap_or(0..0);
         let msg = e.message().trim().to_string();

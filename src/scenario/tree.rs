@@ -13,14 +13,14 @@ use toml::de::{DeArray, DeTable, DeValue};
 
 use super::ScenarioError;
 
-/// The source being read.
+/// The text being read and the file it is reported under.
 #[derive(Debug, Clone, Copy)]
-pub struct Source<'s> {
+pub struct Text<'s> {
     pub file: &'s str,
     pub text: &'s str,
 }
 
-impl<'s> Source<'s> {
+impl<'s> Text<'s> {
     /// Line and column (1-based) of a byte offset.
     pub fn line_col(&self, offset: usize) -> (usize, usize) {
         let offset = offset.min(self.text.len());
@@ -51,7 +51,7 @@ impl<'s> Source<'s> {
 /// One value with its path and place.
 #[derive(Debug, Clone, Copy)]
 pub struct Val<'a, 's> {
-    pub src: Source<'s>,
+    pub src: Text<'s>,
     pub path: &'a str,
     pub span: (usize, usize),
     pub value: &'a DeValue<'s>,
@@ -242,7 +242,7 @@ pub fn each<'a, 's, T>(
 /// A table being read; remembers which keys were read.
 #[derive(Debug)]
 pub struct Tbl<'a, 's> {
-    pub src: Source<'s>,
+    pub src: Text<'s>,
     pub path: String,
     span: (usize, usize),
     map: &'a DeTable<'s>,
@@ -275,7 +275,7 @@ pub fn suggest<'c>(word: &str, candidates: impl Iterator<Item = &'c str>) -> Opt
 
 impl<'a, 's> Tbl<'a, 's> {
     /// The root table of a document.
-    pub fn root(src: Source<'s>, doc: &'a Spanned<DeTable<'s>>) -> Self {
+    pub fn root(src: Text<'s>, doc: &'a Spanned<DeTable<'s>>) -> Self {
         let span = doc.span();
         Tbl {
             src,

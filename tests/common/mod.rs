@@ -25,7 +25,7 @@ pub fn scenario_text(name: &str) -> String {
 /// A shipped scenario, loaded from its file as the command line does.
 pub fn load(name: &str) -> Model {
     match wearout::scenario::load(std::path::Path::new(&scenario_path(name))) {
-        Ok(m) => m,
+        Ok(loaded) => loaded.model,
         Err(e) => panic!("scenario {name} does not load: {e}"),
     }
 }
