@@ -326,7 +326,7 @@ impl FrontierJson {
             space_size: r.space_size as f64,
             search_trials: r.search_trials,
             validate_trials: r.validate_trials,
-            validate_first_trial: crate::frontier::VALIDATION_OFFSET,
+            validate_first_trial: crate::recost::VALIDATION_OFFSET,
             target: r.target,
             seed: model.seed,
             parameter_uncertainty: model.parameter_uncertainty,

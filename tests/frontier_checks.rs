@@ -6,10 +6,9 @@ mod common;
 
 use common::load;
 
-use wearout::frontier::{
-    FrontierConfig, FrontierResult, VALIDATION_OFFSET, hypervolume, non_dominated, search,
-};
+use wearout::frontier::{FrontierConfig, FrontierResult, hypervolume, search};
 use wearout::model::Rule;
+use wearout::recost::{VALIDATION_OFFSET, non_dominated};
 use wearout::run::Quiet;
 
 fn config(

@@ -19,8 +19,9 @@ use std::path::{Path, PathBuf};
 use common::temp_dir;
 use std::sync::OnceLock;
 
-use wearout::frontier::{FrontierConfig, FrontierResult, VALIDATION_OFFSET, search};
+use wearout::frontier::{FrontierConfig, FrontierResult, search};
 use wearout::model::Model;
+use wearout::recost::VALIDATION_OFFSET;
 use wearout::result::FrontierJson;
 use wearout::run::Quiet;
 

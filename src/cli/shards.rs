@@ -20,6 +20,7 @@ use crate::estimate::{self, Estimate};
 use crate::files::TempFile;
 use crate::frontier::FrontierResult;
 use crate::model::{Model, Policy};
+use crate::recost::{self, Costed};
 use crate::result::{EvaluateJson, FrontierJson};
 use crate::scenario::{Loaded, Source};
 use crate::shard::{self, Merged, Merger, RunKind, ShardHeader, ShardSpec};
@@ -178,8 +179,7 @@ fn fixed_setup(
             policies_file.display()
         ))
     })?;
-    let policies =
-        crate::recost::parse_policies(model, &policies_file.display().to_string(), &text)?;
+    let policies = recost::parse_policies(model, &policies_file.display().to_string(), &text)?;
     let validate = args
         .validate_trials
         .or(model.search.as_ref().map(|s| s.validate_trials))
@@ -209,19 +209,21 @@ pub(crate) fn compute_fixed(
         false,
     );
     guard(&model, &est)?;
-    let range = crate::recost::validation_range(validate);
     let bar = Bar::new("validation", validate.saturating_mul(policies.len() as u64));
     let t0 = Instant::now();
-    let mut summaries = Vec::with_capacity(policies.len());
-    for p in &policies {
-        let s = crate::run::evaluate(&model, p, range.clone(), target, &bar)
-            .ok_or_else(|| UserError("interrupted".into()))?;
-        summaries.push(s);
-    }
-    bar.finish();
-    let result = crate::recost::frontier_of(
+    let recosted = recost::recost(
         &model,
-        summaries,
+        &policies,
+        recost::validation_range(validate),
+        target,
+        recost::measure(&model),
+        &bar,
+    )
+    .ok_or_else(|| UserError("interrupted".into()))?;
+    bar.finish();
+    let result = FrontierResult::of_list(
+        &model,
+        recosted,
         validate,
         target,
         t0.elapsed().as_secs_f64(),
@@ -245,7 +247,7 @@ pub(crate) fn frontier_shard(
         &source,
         RunKind::FrontierValidation,
         &policies,
-        crate::recost::validation_range(validate),
+        recost::validation_range(validate),
         spec,
         target,
     );
@@ -327,9 +329,15 @@ pub(crate) fn merge(args: &MergeArgs, out: &mut dyn Write) -> Result<(), UserErr
             })
         }
         RunKind::FrontierValidation => {
-            let result = crate::recost::frontier_of(
+            let measure = recost::measure(&m.model);
+            let recosted = m
+                .summaries
+                .into_iter()
+                .map(|s| Costed::of(s, measure))
+                .collect();
+            let result = FrontierResult::of_list(
                 &m.model,
-                m.summaries,
+                recosted,
                 m.header.run_trials,
                 m.header.target(),
                 m.seconds,

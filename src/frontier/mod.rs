@@ -34,15 +34,14 @@
 pub mod lp;
 
 use std::collections::{HashMap, HashSet};
-use std::ops::Range;
 
 use crate::model::{CostBasis, CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule};
+use crate::recost::{
+    self, Costed, FrontierPoint, frontier_points, non_dominated, validation_range,
+};
 use crate::run::Progress;
 use crate::sim::{ActiveParts, Simulator};
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
-
-/// Validation trials start here, so they never overlap the search trials.
-pub const VALIDATION_OFFSET: u64 = 1 << 40;
 
 /// The most policies `--exhaustive` will try.
 pub const EXHAUSTIVE_LIMIT: u128 = 20_000;
@@ -91,49 +90,6 @@ impl FrontierConfig {
     pub const MAX_FRONTIER: usize = 24;
 }
 
-/// A policy with its figures on one set of trials.
-#[derive(Debug, Clone)]
-pub struct Costed {
-    pub policy: Policy,
-    /// The cost measure and its standard error.
-    pub cost: MeanSe,
-    pub chance: Chance,
-    pub summary: Summary,
-}
-
-/// Whether a frontier policy's difference from the previous (cheaper) one
-/// is inside the noise, by a paired comparison on the same trials.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct NoiseFlags {
-    /// The chance difference is within two paired standard errors.
-    pub chance_within_noise: bool,
-    /// The cost difference is within two paired standard errors.
-    pub cost_within_noise: bool,
-    pub chance_diff: MeanSe,
-    pub cost_diff: MeanSe,
-}
-
-impl NoiseFlags {
-    /// The comparison in words, for tables: `same within noise`, `chance
-    /// same within noise`, `cost same within noise` or `differs`.
-    pub fn words(&self) -> &'static str {
-        match (self.chance_within_noise, self.cost_within_noise) {
-            (true, true) => "same within noise",
-            (true, false) => "chance same within noise",
-            (false, true) => "cost same within noise",
-            (false, false) => "differs",
-        }
-    }
-}
-
-/// One row of the reported frontier.
-#[derive(Debug, Clone)]
-pub struct FrontierPoint {
-    pub costed: Costed,
-    /// Against the previous row (None for the cheapest).
-    pub noise: Option<NoiseFlags>,
-}
-
 /// Where the search's effort went.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct SearchStats {
@@ -169,6 +125,40 @@ pub struct FrontierResult {
     /// The whole search-trial frontier before thinning and re-costing (for
     /// checks).
     pub search_frontier: Vec<(Policy, MeanSe, Chance)>,
+}
+
+impl FrontierResult {
+    /// The frontier of a list of policies re-costed without a search
+    /// (`wearout frontier --policies`, in one process or merged from
+    /// shards): the non-dominated ones, cheapest first, with their paired
+    /// noise flags against the row above, names kept as given. `seconds`
+    /// is the time the re-costing took.
+    pub fn of_list(
+        model: &Model,
+        recosted: Vec<Costed>,
+        validate_trials: u64,
+        target: f64,
+        seconds: f64,
+    ) -> Self {
+        let measure = recost::measure(model);
+        let points = frontier_points(&recosted, measure, false);
+        let stats = SearchStats {
+            recosted: recosted.len(),
+            seconds_validation: seconds,
+            ..SearchStats::default()
+        };
+        FrontierResult {
+            points,
+            searched: Vec::new(),
+            space_size: model.search.as_ref().map_or(0, |s| s.size()),
+            search_trials: 0,
+            validate_trials,
+            cost: measure,
+            target,
+            stats,
+            search_frontier: Vec::new(),
+        }
+    }
 }
 
 /// Why a frontier could not be searched.
@@ -292,27 +282,6 @@ impl Surrogate<'_> {
     }
 }
 
-/// Non-dominated filter on (cost: lower better, chance: higher better);
-/// returns indices sorted by cost, ties broken by higher chance.
-pub fn non_dominated(points: &[(f64, f64)]) -> Vec<usize> {
-    let mut idx: Vec<usize> = (0..points.len()).collect();
-    idx.sort_by(|&a, &b| {
-        points[a]
-            .0
-            .total_cmp(&points[b].0)
-            .then(points[b].1.total_cmp(&points[a].1))
-    });
-    let mut out = Vec::new();
-    let mut best = f64::NEG_INFINITY;
-    for i in idx {
-        if points[i].1 > best {
-            best = points[i].1;
-            out.push(i);
-        }
-    }
-    out
-}
-
 /// Hypervolume of a set of (cost, chance) points against the reference
 /// point (cost_ref, chance 0): the area of cost-chance space they dominate
 /// (Zitzler & Thiele 1998, the S metric).
@@ -336,69 +305,6 @@ pub fn hypervolume(points: &[(f64, f64)], cost_ref: f64) -> f64 {
 /// Cost and chance of a summary under the measure.
 fn cost_chance(s: &Summary, measure: CostMeasure) -> (MeanSe, Chance) {
     (s.cost_measure(measure), s.chance())
-}
-
-/// Simulate `policy` in full on `range`.
-fn full(
-    model: &Model,
-    policy: &Policy,
-    range: Range<u64>,
-    target: f64,
-    progress: &dyn Progress,
-) -> Option<Summary> {
-    crate::run::evaluate(model, policy, range, target, progress)
-}
-
-/// The non-dominated policies among `recosted`, cheapest first, each with
-/// its paired noise flags against the one before it; named `F1`, `F2`, ...
-/// when `rename` (a search's frontier), else keeping their names (a list
-/// the user gave).
-pub fn frontier_points(
-    recosted: &[Costed],
-    measure: CostMeasure,
-    rename: bool,
-) -> Vec<FrontierPoint> {
-    let pts: Vec<(f64, f64)> = recosted
-        .iter()
-        .map(|c| (c.cost.mean, c.chance.value))
-        .collect();
-    let front = non_dominated(&pts);
-    let mut points: Vec<FrontierPoint> = Vec::with_capacity(front.len());
-    for (k, &i) in front.iter().enumerate() {
-        let mut costed = recosted[i].clone();
-        if rename {
-            costed.policy.name = format!("F{}", k + 1);
-            costed.summary.policy.name = costed.policy.name.clone();
-        }
-        let noise = points.last().map(|prev: &FrontierPoint| {
-            paired_noise(&prev.costed.summary, &costed.summary, measure)
-        });
-        points.push(FrontierPoint { costed, noise });
-    }
-    points
-}
-
-/// Paired noise flags between two policies on the same trials.
-pub fn paired_noise(a: &Summary, b: &Summary, measure: CostMeasure) -> NoiseFlags {
-    let n = a.trials().min(b.trials()) as usize;
-    let mut dc = crate::summary::Moments::default();
-    let mut dk = crate::summary::Moments::default();
-    let ca = a.trial_costs(measure.basis);
-    let cb = b.trial_costs(measure.basis);
-    for t in 0..n {
-        let ma = f64::from(u8::from(a.acc.trial_availability[t] >= a.target));
-        let mb = f64::from(u8::from(b.acc.trial_availability[t] >= b.target));
-        dk.push(mb - ma);
-        dc.push(cb[t] - ca[t]);
-    }
-    let chance_diff = MeanSe::from(&dk);
-    let cost_diff = MeanSe::from(&dc);
-    NoiseFlags {
-        chance_within_noise: chance_diff.mean.abs() <= 2.0 * chance_diff.se,
-        cost_within_noise: cost_diff.mean.abs() <= 2.0 * cost_diff.se,
-        chance_diff,
-        cost_diff,
-    }
 }
 
 /// Run the frontier search.
@@ -609,7 +515,7 @@ pub fn search(
                 continue;
             }
             let policy = options.policy(&combo, String::new());
-            let s = full(
+            let s = crate::run::evaluate(
                 model,
                 &policy,
                 search_range.clone(),
@@ -637,22 +543,24 @@ pub fn search(
 
     // 5. Re-cost on fresh trials.
     let t_val = std::time::Instant::now();
-    let vrange = VALIDATION_OFFSET..VALIDATION_OFFSET + config.validate_trials;
+    let front_policies: Vec<Policy> = front
+        .iter()
+        .enumerate()
+        .map(|(k, &i)| Policy {
+            name: format!("F{}", k + 1),
+            ..searched[i].0.clone()
+        })
+        .collect();
     progress.phase("validation", front.len() as u64 * config.validate_trials);
-    let mut recosted: Vec<Costed> = Vec::with_capacity(front.len());
-    for (k, &i) in front.iter().enumerate() {
-        let mut policy = searched[i].0.clone();
-        policy.name = format!("F{}", k + 1);
-        let s = full(model, &policy, vrange.clone(), config.target, progress)
-            .ok_or(FrontierError::Interrupted)?;
-        let (c, ch) = cost_chance(&s, measure);
-        recosted.push(Costed {
-            policy,
-            cost: c,
-            chance: ch,
-            summary: s,
-        });
-    }
+    let recosted = recost::recost(
+        model,
+        &front_policies,
+        validation_range(config.validate_trials),
+        config.target,
+        measure,
+        progress,
+    )
+    .ok_or(FrontierError::Interrupted)?;
     stats.seconds_validation = t_val.elapsed().as_secs_f64();
     let points = frontier_points(&recosted, measure, true);
     let mut names = 0;

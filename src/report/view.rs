@@ -9,8 +9,8 @@
 use crate::analytic::PoissonPipeline;
 use crate::averages::{AveragesPlan, plan_on_averages};
 use crate::dist::LeadTime;
-use crate::frontier::NoiseFlags;
 use crate::model::{CostBasis, CostMeasure, Model, Policy, Rule};
+use crate::recost::NoiseFlags;
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
 use crate::text::num;
 

@@ -11,8 +11,8 @@ use super::view::{
     Kind, LEVELS, PolicyView, View, chance_pct, count_words, display, hours, lead_time_words,
     money_short, pct_trim, pct1, rule_short, rule_words, trim,
 };
-use crate::frontier::NoiseFlags;
 use crate::model::{CostBasis, CostStatistic, Model, Rule};
+use crate::recost::NoiseFlags;
 use crate::text::{CAUTION, money, num};
 
 /// The model's rules in one paragraph.
