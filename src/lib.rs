@@ -5,7 +5,6 @@
 
 pub mod analytic;
 pub mod averages;
-pub mod cli;
 pub mod dist;
 pub mod estimate;
 pub mod files;

@@ -4,18 +4,18 @@
 //! Owns: turning [`FitArgs`] into the report on a writer and the plot
 //! file(s). Knows nothing of clap: the parent module maps its arguments
 //! onto [`FitArgs`].
-//! May use: `crate::fit`, `serde_json`, `std::io`.
+//! May use: `wearout::fit`, `serde_json`, `std::io`.
 
 use std::collections::HashSet;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use crate::fit::{self, Family, FitError, PartFits, PartNotFitted};
+use wearout::fit::{self, Family, FitError, PartFits, PartNotFitted};
 
 /// What to fit and how to report it.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub struct FitArgs {
-    /// The records CSV (format: [`crate::fit::RECORDS_FORMAT_HELP`]).
+    /// The records CSV (format: [`wearout::fit::RECORDS_FORMAT_HELP`]).
     pub records: PathBuf,
     /// Fit only this part type (exact name, else ignoring ASCII case).
     pub part: Option<String>,

@@ -11,7 +11,7 @@
 //! `files` keeps their list) and ends the process. Files a user asked for
 //! are only ever renamed into place whole, so earlier reports, plots and
 //! shard files are never touched.
-//! May use: `ctrlc`, `crate::files`, std.
+//! May use: `ctrlc`, `wearout::files`, std.
 
 use std::io::Write;
 use std::sync::atomic::{AtomicBool, Ordering};
@@ -35,7 +35,7 @@ pub fn install() {
         if !again {
             std::thread::sleep(GRACE);
         }
-        crate::files::remove_temporaries();
+        wearout::files::remove_temporaries();
         let _ = writeln!(std::io::stderr(), "{MESSAGE}");
         std::process::exit(i32::from(EXIT_INTERRUPTED));
     });
