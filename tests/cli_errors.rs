@@ -5,6 +5,7 @@
 mod common;
 
 use std::path::PathBuf;
+use std::process::Stdio;
 
 use common::{Ran, run_wearout, scenario_text as scenario, temp_dir};
 
@@ -341,4 +342,33 @@ fn frontier_refusals() {
     } = run_wearout(&["frontier", p.to_str().unwrap()]);
     assert_eq!(code, Some(2), "{err}");
     assert!(err.contains("no [search] table"), "{err}");
+}
+
+/// A reader that goes away before the output comes (`wearout ... | head`)
+/// is no failure: exit status 0 and nothing on stderr (common practice of
+/// command-line tools).
+#[test]
+fn a_closed_output_pipe_is_no_failure() {
+    let fans = format!(
+        "{}/tests/data/generator_fans.csv",
+        env!("CARGO_MANIFEST_DIR")
+    );
+    let runs: [&[&str]; 3] = [
+        &["evaluate", "--trials", "300", "--json"],
+        &["evaluate", "--trials", "300"],
+        &["fit", &fans],
+    ];
+    for args in runs {
+        let mut child = common::wearout()
+            .args(args)
+            .stdout(Stdio::piped())
+            .stderr(Stdio::piped())
+            .spawn()
+            .expect("wearout starts");
+        drop(child.stdout.take());
+        let out = child.wait_with_output().expect("wearout ends");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(0), "{args:?}: {err}");
+        assert!(err.is_empty(), "{args:?}: {err}");
+    }
 }
