@@ -35,6 +35,15 @@ impl PartOutcome {
     pub fn total(&self) -> Money {
         self.spend() + self.downtime_cost
     }
+
+    /// The cost on the given basis; `capital` is the initial stock's
+    /// capital (counted in spend only).
+    pub fn cost(&self, basis: CostBasis, capital: Money) -> Money {
+        match basis {
+            CostBasis::Spend => self.spend() + capital,
+            CostBasis::TotalWithPenalty => self.total(),
+        }
+    }
 }
 
 /// The outcome of one trial of the whole fleet.

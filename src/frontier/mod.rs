@@ -35,7 +35,9 @@ pub mod lp;
 
 use std::collections::{HashMap, HashSet};
 
-use crate::model::{CostBasis, CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule};
+use rayon::prelude::*;
+
+use crate::model::{CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule, SearchSpace};
 use crate::recost::{
     self, Costed, FrontierPoint, frontier_points, non_dominated, validation_range,
 };
@@ -280,6 +282,22 @@ impl Surrogate<'_> {
     fn fits(&self, combo: &[u16]) -> bool {
         self.budget.is_none_or(|b| self.capital(combo) <= b + 1e-9)
     }
+
+    /// Per part type, the first option with the least `key`.
+    fn least_per_part(&self, key: impl Fn(&Screened) -> f64) -> Vec<u16> {
+        self.screened
+            .iter()
+            .map(|opts| {
+                let mut best = 0;
+                for (i, o) in opts.iter().enumerate() {
+                    if key(o) < key(&opts[best]) {
+                        best = i;
+                    }
+                }
+                best as u16
+            })
+            .collect()
+    }
 }
 
 /// Hypervolume of a set of (cost, chance) points against the reference
@@ -302,12 +320,9 @@ pub fn hypervolume(points: &[(f64, f64)], cost_ref: f64) -> f64 {
     hv
 }
 
-/// Cost and chance of a summary under the measure.
-fn cost_chance(s: &Summary, measure: CostMeasure) -> (MeanSe, Chance) {
-    (s.cost_measure(measure), s.chance())
-}
-
-/// Run the frontier search.
+/// Run the frontier search: the steps of the module comment, or with
+/// `config.exhaustive` every policy of the space in full, then the
+/// re-costing of the search frontier on fresh trials.
 ///
 /// # Errors
 /// When the scenario has no search space, `--exhaustive` meets a space that
@@ -319,236 +334,270 @@ pub fn search(
 ) -> Result<FrontierResult, FrontierError> {
     let space = model.search.as_ref().ok_or(FrontierError::NoSearchSpace)?;
     let options = Options::new(model).ok_or(FrontierError::NoSearchSpace)?;
-    let measure = space.cost;
+    let mut stats = SearchStats::default();
+    let searched = if config.exhaustive {
+        simulate_every_policy(model, space, &options, config, progress, &mut stats)?
+    } else {
+        search_on_the_surrogate(model, space, &options, config, progress, &mut stats)?
+    };
+    recost_the_frontier(model, space, config, searched, progress, stats)
+}
+
+/// `--exhaustive`: every policy of the space (within the spares budget) in
+/// full on the search trials, in parallel over policies, in odometer order.
+fn simulate_every_policy(
+    model: &Model,
+    space: &SearchSpace,
+    options: &Options,
+    config: &FrontierConfig,
+    progress: &dyn Progress,
+    stats: &mut SearchStats,
+) -> Result<Vec<Costed>, FrontierError> {
+    let t_start = std::time::Instant::now();
     let size = space.size();
     let n = config.search_trials;
-    let search_range = 0..n;
-    let mut stats = SearchStats::default();
-    let t_start = std::time::Instant::now();
-
-    // Policies simulated in full on the search trials.
-    let mut searched: Vec<(Policy, MeanSe, Chance, Summary)> = Vec::new();
-
-    if config.exhaustive {
-        if size > EXHAUSTIVE_LIMIT {
-            return Err(FrontierError::TooLarge {
-                size,
-                limit: EXHAUSTIVE_LIMIT,
-            });
-        }
-        progress.phase("exhaustive", size as u64 * n);
-        // Every combination in odometer order (first part type fastest).
-        let mut combos: Vec<Vec<u16>> = Vec::new();
-        let mut combo = vec![0u16; options.per_part.len()];
-        'odometer: loop {
-            combos.push(combo.clone());
-            for (digit, opts) in combo.iter_mut().zip(&options.per_part) {
-                *digit += 1;
-                if (*digit as usize) < opts.len() {
-                    continue 'odometer;
-                }
-                *digit = 0;
+    if size > EXHAUSTIVE_LIMIT {
+        return Err(FrontierError::TooLarge {
+            size,
+            limit: EXHAUSTIVE_LIMIT,
+        });
+    }
+    progress.phase("exhaustive", size as u64 * n);
+    // Every combination in odometer order (first part type fastest).
+    let mut combos: Vec<Vec<u16>> = Vec::new();
+    let mut combo = vec![0u16; options.per_part.len()];
+    'odometer: loop {
+        combos.push(combo.clone());
+        for (digit, opts) in combo.iter_mut().zip(&options.per_part) {
+            *digit += 1;
+            if (*digit as usize) < opts.len() {
+                continue 'odometer;
             }
-            break;
+            *digit = 0;
         }
-        let policies: Vec<Policy> = combos
-            .iter()
-            .enumerate()
-            .map(|(i, c)| options.policy(c, format!("p{}", i + 1)))
-            .filter(|p| {
-                space
-                    .spares_budget
-                    .is_none_or(|b| p.initial_stock_capital(model) <= b + 1e-9)
+        break;
+    }
+    let policies: Vec<Policy> = combos
+        .iter()
+        .enumerate()
+        .map(|(i, c)| options.policy(c, format!("p{}", i + 1)))
+        .filter(|p| {
+            space
+                .spares_budget
+                .is_none_or(|b| p.initial_stock_capital(model) <= b + 1e-9)
+        })
+        .collect();
+    if policies.is_empty() {
+        return Err(FrontierError::NothingFits(
+            space.spares_budget.unwrap_or(0.0),
+        ));
+    }
+    // Parallel over policies (each on one thread), in a fixed order.
+    let evaluated: Vec<Option<Summary>> = policies
+        .par_iter()
+        .map_init(crate::sim::Workspace::default, |ws, policy| {
+            if progress.cancelled() {
+                return None;
+            }
+            let s = crate::run::evaluate_on_thread(model, policy, 0..n, config.target, ws);
+            progress.advance(n);
+            Some(s)
+        })
+        .collect();
+    let searched = evaluated
+        .into_iter()
+        .map(|s| Ok(Costed::of(s.ok_or(FrontierError::Interrupted)?, space.cost)))
+        .collect::<Result<Vec<_>, _>>()?;
+    stats.evaluated = searched.len();
+    stats.seconds_search = t_start.elapsed().as_secs_f64();
+    Ok(searched)
+}
+
+/// Steps 1 to 4: screening, seeds, Pareto local search on the surrogate,
+/// and a spread of the surrogate frontier simulated in full on the search
+/// trials.
+fn search_on_the_surrogate(
+    model: &Model,
+    space: &SearchSpace,
+    options: &Options,
+    config: &FrontierConfig,
+    progress: &dyn Progress,
+    stats: &mut SearchStats,
+) -> Result<Vec<Costed>, FrontierError> {
+    let t_start = std::time::Instant::now();
+    let mut sur = screen(model, space, options, config, progress, stats)?;
+    stats.seconds_screening = t_start.elapsed().as_secs_f64();
+    let t_search = std::time::Instant::now();
+    let seeds = seeds(&mut sur, space, stats)?;
+    let archive = pareto_local_search(&mut sur, seeds, 40);
+    stats.surrogate_scored = sur.cache.len();
+    let picks = spread(&mut sur, &archive, config.max_full);
+    let searched = simulate_picks(model, space, options, config, picks, progress)?;
+    stats.evaluated = searched.len();
+    stats.seconds_search = t_search.elapsed().as_secs_f64();
+    Ok(searched)
+}
+
+/// Step 1, screening: each part type alone under each of its options, on the
+/// first `config.screen_trials` search trials, one option per task, in
+/// parallel over options; the surrogate built from the results.
+fn screen<'a>(
+    model: &'a Model,
+    space: &SearchSpace,
+    options: &Options,
+    config: &FrontierConfig,
+    progress: &dyn Progress,
+    stats: &mut SearchStats,
+) -> Result<Surrogate<'a>, FrontierError> {
+    let measure = space.cost;
+    let n_parts = model.parts.len();
+    let allowed_down = (1.0 - config.target) * model.units.len() as f64 * model.horizon;
+    let screen_n = config.search_trials.min(config.screen_trials.max(1));
+    let tasks: Vec<(usize, PartPolicy)> = options
+        .per_part
+        .iter()
+        .enumerate()
+        .flat_map(|(p, opts)| opts.iter().map(move |pp| (p, *pp)))
+        .collect();
+    progress.phase("screening", tasks.len() as u64 * screen_n);
+    let results: Vec<Option<Screened>> = tasks
+        .par_iter()
+        .map_init(crate::sim::Workspace::default, |ws, &(p, pp)| {
+            if progress.cancelled() {
+                return None;
+            }
+            let mut parts: Vec<PartPolicy> = vec![
+                PartPolicy {
+                    rule: Rule::RunToFailure,
+                    stock: 0,
+                };
+                n_parts
+            ];
+            parts[p] = pp;
+            let sim = Simulator::with_parts(model, &parts, ActiveParts::only(n_parts, p));
+            let capital = pp.stock as f64 * model.parts[p].price;
+            let mut down = Vec::with_capacity(screen_n as usize);
+            let mut cost = Vec::with_capacity(screen_n as usize);
+            for t in 0..screen_n {
+                let o = sim.run(t, ws);
+                down.push(o.down_hours());
+                cost.push(o.parts[p].cost(measure.basis, capital));
+            }
+            progress.advance(screen_n);
+            let cost_mean = cost.iter().sum::<f64>() / cost.len().max(1) as f64;
+            Some(Screened {
+                down,
+                cost,
+                cost_mean,
+                capital,
             })
-            .collect();
-        if policies.is_empty() {
+        })
+        .collect();
+    let mut screened: Vec<Vec<Screened>> = vec![Vec::new(); n_parts];
+    for ((p, _), r) in tasks.iter().zip(results) {
+        screened[*p].push(r.ok_or(FrontierError::Interrupted)?);
+        stats.screening_runs += 1;
+    }
+    Ok(Surrogate {
+        screened,
+        allowed_down,
+        measure,
+        budget: space.spares_budget,
+        n: screen_n as usize,
+        cache: HashMap::new(),
+        _model: model,
+    })
+}
+
+/// Step 2, seeds: the marginal-analysis path from the cheapest policy and the
+/// linear programs' roundings, those within the budget; failing all, the
+/// policy of least capital.
+fn seeds(
+    sur: &mut Surrogate<'_>,
+    space: &SearchSpace,
+    stats: &mut SearchStats,
+) -> Result<Vec<Vec<u16>>, FrontierError> {
+    let mut seeds: Vec<Vec<u16>> = Vec::new();
+    let cheapest = sur.least_per_part(|o| o.cost_mean);
+    seeds.extend(marginal_path(sur, &cheapest));
+    seeds.extend(lp_seeds(sur, stats));
+    seeds.retain(|c| sur.fits(c));
+    if seeds.is_empty() {
+        // The cheapest-capital combination as a last seed.
+        let low = sur.least_per_part(|o| o.capital);
+        if !sur.fits(&low) {
             return Err(FrontierError::NothingFits(
                 space.spares_budget.unwrap_or(0.0),
             ));
         }
-        // Parallel over policies (each on one thread), in a fixed order.
-        use rayon::prelude::*;
-        let evaluated: Vec<Option<Summary>> = policies
-            .par_iter()
-            .map_init(crate::sim::Workspace::default, |ws, policy| {
-                if progress.cancelled() {
-                    return None;
-                }
-                let s = crate::run::evaluate_on_thread(
-                    model,
-                    policy,
-                    search_range.clone(),
-                    config.target,
-                    ws,
-                );
-                progress.advance(n);
-                Some(s)
-            })
-            .collect();
-        for (policy, s) in policies.into_iter().zip(evaluated) {
-            let s = s.ok_or(FrontierError::Interrupted)?;
-            let (c, k) = cost_chance(&s, measure);
-            searched.push((policy, c, k, s));
-        }
-        stats.evaluated = searched.len();
-        stats.seconds_search = t_start.elapsed().as_secs_f64();
-    } else {
-        // 1. Screening.
-        let n_parts = model.parts.len();
-        let allowed_down = (1.0 - config.target) * model.units.len() as f64 * model.horizon;
-        // Screening runs on the first `screen_n` search trials, one option
-        // per task, in parallel over options.
-        let screen_n = n.min(config.screen_trials.max(1));
-        let tasks: Vec<(usize, PartPolicy)> = options
-            .per_part
-            .iter()
-            .enumerate()
-            .flat_map(|(p, opts)| opts.iter().map(move |pp| (p, *pp)))
-            .collect();
-        progress.phase("screening", tasks.len() as u64 * screen_n);
-        use rayon::prelude::*;
-        let results: Vec<Option<Screened>> = tasks
-            .par_iter()
-            .map_init(crate::sim::Workspace::default, |ws, &(p, pp)| {
-                if progress.cancelled() {
-                    return None;
-                }
-                let mut parts: Vec<PartPolicy> = vec![
-                    PartPolicy {
-                        rule: Rule::RunToFailure,
-                        stock: 0,
-                    };
-                    n_parts
-                ];
-                parts[p] = pp;
-                let sim = Simulator::with_parts(model, &parts, ActiveParts::only(n_parts, p));
-                let capital = pp.stock as f64 * model.parts[p].price;
-                let mut down = Vec::with_capacity(screen_n as usize);
-                let mut cost = Vec::with_capacity(screen_n as usize);
-                for t in 0..screen_n {
-                    let o = sim.run(t, ws);
-                    down.push(o.down_hours());
-                    let po = &o.parts[p];
-                    cost.push(match measure.basis {
-                        CostBasis::Spend => po.spend() + capital,
-                        CostBasis::TotalWithPenalty => po.total(),
-                    });
-                }
-                progress.advance(screen_n);
-                let cost_mean = cost.iter().sum::<f64>() / cost.len().max(1) as f64;
-                Some(Screened {
-                    down,
-                    cost,
-                    cost_mean,
-                    capital,
-                })
-            })
-            .collect();
-        let mut screened: Vec<Vec<Screened>> = vec![Vec::new(); n_parts];
-        for ((p, _), r) in tasks.iter().zip(results) {
-            screened[*p].push(r.ok_or(FrontierError::Interrupted)?);
-            stats.screening_runs += 1;
-        }
-        stats.seconds_screening = t_start.elapsed().as_secs_f64();
-        let t_search = std::time::Instant::now();
-        let mut sur = Surrogate {
-            screened,
-            allowed_down,
-            measure,
-            budget: space.spares_budget,
-            n: screen_n as usize,
-            cache: HashMap::new(),
-            _model: model,
-        };
-
-        // 2. Seeds.
-        let mut seeds: Vec<Vec<u16>> = Vec::new();
-        let cheapest: Vec<u16> = sur
-            .screened
-            .iter()
-            .map(|opts| {
-                let mut best = 0;
-                for (i, o) in opts.iter().enumerate() {
-                    if o.cost_mean < opts[best].cost_mean {
-                        best = i;
-                    }
-                }
-                best as u16
-            })
-            .collect();
-        seeds.extend(marginal_path(&mut sur, &cheapest));
-        seeds.extend(lp_seeds(&mut sur, &mut stats));
-        seeds.retain(|c| sur.fits(c));
-        if seeds.is_empty() {
-            // The cheapest-capital combination as a last seed.
-            let low: Vec<u16> = sur
-                .screened
-                .iter()
-                .map(|opts| {
-                    let mut best = 0;
-                    for (i, o) in opts.iter().enumerate() {
-                        if o.capital < opts[best].capital {
-                            best = i;
-                        }
-                    }
-                    best as u16
-                })
-                .collect();
-            if !sur.fits(&low) {
-                return Err(FrontierError::NothingFits(
-                    space.spares_budget.unwrap_or(0.0),
-                ));
-            }
-            seeds.push(low);
-        }
-
-        // 3. Pareto local search on the surrogate.
-        let archive = pareto_local_search(&mut sur, seeds, 40);
-        stats.surrogate_scored = sur.cache.len();
-
-        // 4. Full simulation of a spread of surrogate-frontier policies.
-        let picks = spread(&mut sur, &archive, config.max_full);
-        progress.phase("search", picks.len() as u64 * n);
-        let mut seen: HashSet<Vec<u16>> = HashSet::new();
-        for combo in picks {
-            if !seen.insert(combo.clone()) {
-                continue;
-            }
-            let policy = options.policy(&combo, String::new());
-            let s = crate::run::evaluate(
-                model,
-                &policy,
-                search_range.clone(),
-                config.target,
-                progress,
-            )
-            .ok_or(FrontierError::Interrupted)?;
-            let (c, k) = cost_chance(&s, measure);
-            searched.push((policy, c, k, s));
-        }
-        stats.evaluated = searched.len();
-        stats.seconds_search = t_search.elapsed().as_secs_f64();
+        seeds.push(low);
     }
+    Ok(seeds)
+}
 
-    // The frontier on the search trials.
-    let pts: Vec<(f64, f64)> = searched.iter().map(|s| (s.1.mean, s.2.value)).collect();
+/// Step 4, full simulation of the picked combinations (each once) on the search
+/// trials, where part types interact exactly.
+fn simulate_picks(
+    model: &Model,
+    space: &SearchSpace,
+    options: &Options,
+    config: &FrontierConfig,
+    picks: Vec<Vec<u16>>,
+    progress: &dyn Progress,
+) -> Result<Vec<Costed>, FrontierError> {
+    let n = config.search_trials;
+    progress.phase("search", picks.len() as u64 * n);
+    let mut seen: HashSet<Vec<u16>> = HashSet::new();
+    let mut searched = Vec::new();
+    for combo in picks {
+        if !seen.insert(combo.clone()) {
+            continue;
+        }
+        let policy = options.policy(&combo, String::new());
+        let s = crate::run::evaluate(model, &policy, 0..n, config.target, progress)
+            .ok_or(FrontierError::Interrupted)?;
+        searched.push(Costed::of(s, space.cost));
+    }
+    Ok(searched)
+}
+
+/// Step 5: the frontier on the search trials, thinned to at most
+/// `config.max_frontier` policies, re-costed on the validation trials and
+/// its frontier recomputed from the re-costed figures.
+fn recost_the_frontier(
+    model: &Model,
+    space: &SearchSpace,
+    config: &FrontierConfig,
+    searched: Vec<Costed>,
+    progress: &dyn Progress,
+    mut stats: SearchStats,
+) -> Result<FrontierResult, FrontierError> {
+    let measure = space.cost;
+    let pts: Vec<(f64, f64)> = searched
+        .iter()
+        .map(|s| (s.cost.mean, s.chance.value))
+        .collect();
     let full_front = non_dominated(&pts);
     let search_frontier: Vec<(Policy, MeanSe, Chance)> = full_front
         .iter()
-        .map(|&i| (searched[i].0.clone(), searched[i].1, searched[i].2))
+        .map(|&i| {
+            (
+                searched[i].policy.clone(),
+                searched[i].cost,
+                searched[i].chance,
+            )
+        })
         .collect();
-
     let front = thin(&full_front, &pts, config.max_frontier);
     stats.recosted = front.len();
 
-    // 5. Re-cost on fresh trials.
     let t_val = std::time::Instant::now();
     let front_policies: Vec<Policy> = front
         .iter()
         .enumerate()
         .map(|(k, &i)| Policy {
             name: format!("F{}", k + 1),
-            ..searched[i].0.clone()
+            ..searched[i].policy.clone()
         })
         .collect();
     progress.phase("validation", front.len() as u64 * config.validate_trials);
@@ -563,22 +612,22 @@ pub fn search(
     .ok_or(FrontierError::Interrupted)?;
     stats.seconds_validation = t_val.elapsed().as_secs_f64();
     let points = frontier_points(&recosted, measure, true);
-    let mut names = 0;
     let searched_out = searched
         .into_iter()
-        .map(|(mut p, c, k, _)| {
-            names += 1;
+        .enumerate()
+        .map(|(k, c)| {
+            let mut p = c.policy;
             if p.name.is_empty() {
-                p.name = format!("s{names}");
+                p.name = format!("s{}", k + 1);
             }
-            (p, c, k)
+            (p, c.cost, c.chance)
         })
         .collect();
     Ok(FrontierResult {
         points,
         searched: searched_out,
-        space_size: size,
-        search_trials: n,
+        space_size: space.size(),
+        search_trials: config.search_trials,
         validate_trials: config.validate_trials,
         cost: measure,
         target: config.target,
