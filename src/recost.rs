@@ -287,9 +287,7 @@ pub fn parse_policies(model: &Model, file: &str, text: &str) -> Result<Vec<Polic
             })?;
             for k in t.keys() {
                 if !names.contains(&k.as_str()) {
-                    let hint = crate::scenario::suggest(k, names.iter().copied())
-                        .map(|c| format!(" (did you mean `{c}`?)"))
-                        .unwrap_or_default();
+                    let hint = crate::scenario::did_you_mean(k, names.iter().copied());
                     return Err(err(
                         format!("{at}.{key}.{k}"),
                         format!(

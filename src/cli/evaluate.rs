@@ -71,9 +71,7 @@ fn pick(model: &wearout::model::Model, name: Option<&str>) -> Result<Policy, Cli
     let names: Vec<&str> = model.policies.iter().map(|p| p.name.as_str()).collect();
     let policy = match name {
         Some(name) => model.policy(name).ok_or_else(|| {
-            let hint = wearout::scenario::suggest(name, names.iter().copied())
-                .map(|c| format!(" (did you mean `{c}`?)"))
-                .unwrap_or_default();
+            let hint = wearout::scenario::did_you_mean(name, names.iter().copied());
             CliError::user(format!(
                 "the scenario has no policy named `{name}`{hint}; policies: {}",
                 if names.is_empty() {

@@ -24,7 +24,7 @@ use crate::model::{
 use crate::uncertainty::LifeUncertainty;
 use tree::{Tbl, Text, Val, each};
 
-pub use tree::suggest;
+pub use tree::{did_you_mean, suggest};
 
 /// The demo scenario compiled into the binary.
 pub const DEMO: &str = include_str!("../../scenarios/demo.toml");
@@ -196,6 +196,7 @@ fn dist_err(v: &Val<'_, '_>, e: DistError) -> ScenarioError {
 struct Defaults {
     holding: Option<HoldingSpec>,
     lead_time: Option<LeadTime>,
+    initial_age: Option<AgeSpec>,
 }
 
 #[derive(Clone, Copy)]
@@ -546,10 +547,7 @@ fn read_part(
         })?,
     };
     let hard_limit = t.with("hard_limit_hours", |v| v.positive())?;
-    let safety = t.with("safety_critical", |v| match v.value {
-        toml::de::DeValue::Boolean(b) => Ok(*b),
-        _ => Err(v.error("expected true or false")),
-    })?;
+    let safety = t.with("safety_critical", |v| v.boolean())?;
     if safety == Some(false) && hard_limit.is_some() {
         return Err(t.error(
             "a part with `hard_limit_hours` is safety-critical here (never run to failure, never kept past the limit); remove `safety_critical = false` or the limit",
@@ -706,9 +704,7 @@ fn read_policy(name: &str, v: Val<'_, '_>, parts: &[PartType]) -> Result<Policy,
     let mut out: Vec<Option<PartPolicy>> = vec![None; parts.len()];
     t.entries(|key, v| {
         let Some(pid) = parts.iter().position(|p| p.name == key) else {
-            let hint = suggest(key, names.iter().copied())
-                .map(|c| format!(" (did you mean `{c}`?)"))
-                .unwrap_or_default();
+            let hint = did_you_mean(key, names.iter().copied());
             return Err(v.error(format!(
                 "policy names part type `{key}`, which the scenario does not define{hint}; part types: {}",
                 names.join(", ")
@@ -949,9 +945,7 @@ fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, Scenar
         let pt = v.table()?;
         pt.entries(|key, v| {
             let Some(pid) = parts.iter().position(|p| p.name == key) else {
-                let hint = suggest(key, names.iter().copied())
-                    .map(|c| format!(" (did you mean `{c}`?)"))
-                    .unwrap_or_default();
+                let hint = did_you_mean(key, names.iter().copied());
                 return Err(v.error(format!(
                     "the search names part type `{key}`, which the scenario does not define{hint}"
                 )));
@@ -997,8 +991,62 @@ fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, Scenar
     })
 }
 
+/// The `[scenario]` table.
+struct ScenarioTable {
+    name: String,
+    description: String,
+    horizon: Hours,
+    downtime_penalty: f64,
+    target: f64,
+    seed: u64,
+    trials: u64,
+    currency: String,
+    parameter_uncertainty: bool,
+}
+
+/// A whole scenario file: each table in turn, then the model checked as a
+/// whole (a named policy that breaks a safety-critical part's limit).
 fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, ScenarioError> {
-    let sc = root.need("scenario", "the [scenario] table with name, horizon_hours, ...", |v| {
+    let sc = read_scenario_table(root)?;
+    let defaults = read_defaults(root)?;
+    let parts = read_parts(root, &defaults, base)?;
+    let unit_types = read_unit_types(root, &parts)?;
+    let groups = read_fleet(root, &parts, &unit_types, &defaults)?;
+    let policies = read_policies(root, &parts)?;
+    let search = root.with("search", |v| read_search(v, &parts))?;
+    root.finish(ROOT_KEYS)?;
+
+    let units = Model::flatten_units(&unit_types, &groups);
+    let model = Model {
+        name: sc.name,
+        description: sc.description,
+        horizon: sc.horizon,
+        downtime_penalty: sc.downtime_penalty,
+        target: sc.target,
+        seed: sc.seed,
+        trials: sc.trials,
+        parts,
+        unit_types,
+        groups,
+        units,
+        policies: policies.iter().map(|(p, _)| p.clone()).collect(),
+        search,
+        currency: sc.currency,
+        parameter_uncertainty: sc.parameter_uncertainty,
+    };
+    for (p, span) in &policies {
+        if let Some(msg) = model.safety_violation(p) {
+            return Err(root
+                .src
+                .error(&format!("policies.{}", p.name), span.0..span.1, msg));
+        }
+    }
+    Ok(model)
+}
+
+/// `[scenario]`: name, horizon, penalty, target and the run's defaults.
+fn read_scenario_table(root: &Tbl<'_, '_>) -> Result<ScenarioTable, ScenarioError> {
+    root.need("scenario", "the [scenario] table with name, horizon_hours, ...", |v| {
         let t = v.table()?;
         let name = t.need("name", "a short name, e.g. \"quarry\"", |v| {
             let s = v.string()?;
@@ -1028,10 +1076,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
         let trials = t.with("trials", |v| v.integer(1, 1_000_000_000))?.unwrap_or(2000) as u64;
         let currency = t.with("currency", |v| v.string().map(str::to_string))?.unwrap_or_default();
         let uncertainty = t
-            .with("parameter_uncertainty", |v| match v.value {
-                toml::de::DeValue::Boolean(b) => Ok(*b),
-                _ => Err(v.error("expected true or false")),
-            })?
+            .with("parameter_uncertainty", |v| v.boolean())?
             .unwrap_or(false);
         t.finish(&[
             "name",
@@ -1044,49 +1089,66 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
             "currency",
             "parameter_uncertainty",
         ])?;
-        Ok((name, description, horizon, penalty, target, seed, trials, currency, uncertainty))
-    })?;
-    let (
-        name,
-        description,
-        horizon,
-        downtime_penalty,
-        target,
-        seed,
-        trials,
-        currency,
-        parameter_uncertainty,
-    ) = sc;
+        Ok(ScenarioTable {
+            name,
+            description,
+            horizon,
+            downtime_penalty: penalty,
+            target,
+            seed,
+            trials,
+            currency,
+            parameter_uncertainty: uncertainty,
+        })
+    })
+}
 
-    let mut age_default: Option<AgeSpec> = None;
-    let defaults = root
+/// `[defaults]`: holding cost, lead time and initial age for part types
+/// and fleet entries that give none.
+fn read_defaults(root: &Tbl<'_, '_>) -> Result<Defaults, ScenarioError> {
+    Ok(root
         .with("defaults", |v| {
             let t = v.table()?;
             let holding = t.with("holding", read_holding)?;
             let lead_time = t.with("lead_time", read_lead)?;
-            age_default = t.with("initial_age", read_age)?;
+            let initial_age = t.with("initial_age", read_age)?;
             t.finish(&["holding", "lead_time", "initial_age"])?;
-            Ok(Defaults { holding, lead_time })
+            Ok(Defaults {
+                holding,
+                lead_time,
+                initial_age,
+            })
         })?
         .unwrap_or(Defaults {
             holding: None,
             lead_time: None,
-        });
+            initial_age: None,
+        }))
+}
 
-    let parts: Vec<PartType> = root.need("parts", "at least one [parts.NAME] table", |v| {
+/// `[parts.NAME]`: at least one part type.
+fn read_parts(
+    root: &Tbl<'_, '_>,
+    defaults: &Defaults,
+    base: Option<&Path>,
+) -> Result<Vec<PartType>, ScenarioError> {
+    root.need("parts", "at least one [parts.NAME] table", |v| {
         let t = v.table()?;
         let parts = t.entries(|key, v| {
             check_name(&v, key)?;
-            read_part(key, v, &defaults, base)
+            read_part(key, v, defaults, base)
         })?;
         if parts.is_empty() {
             return Err(v.error("define at least one part type as [parts.NAME]"));
         }
         Ok(parts)
-    })?;
-    let part_names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
+    })
+}
 
-    let unit_types: Vec<UnitType> = root.need("units", "at least one [units.NAME] table with positions", |v| {
+/// `[units.NAME]`: unit types as lists of positions of part types.
+fn read_unit_types(root: &Tbl<'_, '_>, parts: &[PartType]) -> Result<Vec<UnitType>, ScenarioError> {
+    let part_names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
+    root.need("units", "at least one [units.NAME] table with positions", |v| {
         let t = v.table()?;
         let out = t.entries(|key, v| {
             check_name(&v, key)?;
@@ -1104,9 +1166,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
                         (None, x.string()?.to_string())
                     };
                     let Some(pid) = parts.iter().position(|p| p.name == part) else {
-                        let hint = suggest(&part, part_names.iter().copied())
-                            .map(|c| format!(" (did you mean `{c}`?)"))
-                            .unwrap_or_default();
+                        let hint = did_you_mean(&part, part_names.iter().copied());
                         return Err(x.error(format!(
                             "position names part type `{part}`, which is not defined{hint}; part types: {}",
                             part_names.join(", ")
@@ -1140,10 +1200,20 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
             return Err(v.error("define at least one unit type as [units.NAME]"));
         }
         Ok(out)
-    })?;
-    let unit_names: Vec<&str> = unit_types.iter().map(|u| u.name.as_str()).collect();
+    })
+}
 
-    let groups: Vec<FleetGroup> = root.need(
+/// `[[fleet]]`: how many units of each type, and their parts' initial
+/// ages.
+fn read_fleet(
+    root: &Tbl<'_, '_>,
+    parts: &[PartType],
+    unit_types: &[UnitType],
+    defaults: &Defaults,
+) -> Result<Vec<FleetGroup>, ScenarioError> {
+    let part_names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
+    let unit_names: Vec<&str> = unit_types.iter().map(|u| u.name.as_str()).collect();
+    root.need(
         "fleet",
         "one or more [[fleet]] entries with unit and count",
         |v| {
@@ -1152,9 +1222,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
                 let unit = t.need("unit", "the unit type", |v| {
                     let s = v.string()?;
                     unit_types.iter().position(|u| u.name == s).ok_or_else(|| {
-                        let hint = suggest(s, unit_names.iter().copied())
-                            .map(|c| format!(" (did you mean `{c}`?)"))
-                            .unwrap_or_default();
+                        let hint = did_you_mean(s, unit_names.iter().copied());
                         v.error(format!(
                             "unit type `{s}` is not defined{hint}; unit types: {}",
                             unit_names.join(", ")
@@ -1188,7 +1256,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
                         .find(|(p, _)| *p == pid)
                         .map(|(_, s)| s)
                         .or(age.as_ref())
-                        .or(age_default.as_ref())
+                        .or(defaults.initial_age.as_ref())
                         .unwrap_or(&AgeSpec::New);
                     if let AgeSpec::List(l) = spec
                         && l.len() != count
@@ -1217,45 +1285,26 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
             }
             Ok(gs)
         },
-    )?;
+    )
+}
 
-    let policies = root
+/// Where a value stands in the file: byte offsets.
+type Span = (usize, usize);
+
+/// `[policies.NAME]`: the named policies, each with its place for
+/// messages.
+fn read_policies(
+    root: &Tbl<'_, '_>,
+    parts: &[PartType],
+) -> Result<Vec<(Policy, Span)>, ScenarioError> {
+    Ok(root
         .with("policies", |v| {
             let t = v.table()?;
             t.entries(|key, v| {
                 check_name(&v, key)?;
-                let p = read_policy(key, v, &parts)?;
+                let p = read_policy(key, v, parts)?;
                 Ok((p, v.span))
             })
         })?
-        .unwrap_or_default();
-    let search = root.with("search", |v| read_search(v, &parts))?;
-    root.finish(ROOT_KEYS)?;
-
-    let units = Model::flatten_units(&unit_types, &groups);
-    let model = Model {
-        name,
-        description,
-        horizon,
-        downtime_penalty,
-        target,
-        seed,
-        trials,
-        parts,
-        unit_types,
-        groups,
-        units,
-        policies: policies.iter().map(|(p, _)| p.clone()).collect(),
-        search,
-        currency,
-        parameter_uncertainty,
-    };
-    for (p, span) in &policies {
-        if let Some(msg) = model.safety_violation(p) {
-            return Err(root
-                .src
-                .error(&format!("policies.{}", p.name), span.0..span.1, msg));
-        }
-    }
-    Ok(model)
+        .unwrap_or_default())
 }

@@ -175,15 +175,21 @@ impl<'a, 's> Val<'a, 's> {
         }
     }
 
+    /// `true` or `false`.
+    pub fn boolean(&self) -> Result<bool, ScenarioError> {
+        match self.value {
+            DeValue::Boolean(b) => Ok(*b),
+            _ => Err(self.error("expected true or false")),
+        }
+    }
+
     /// A string from a fixed set.
     pub fn one_of<'c>(&self, allowed: &[&'c str]) -> Result<&'c str, ScenarioError> {
         let s = self.string()?;
         if let Some(found) = allowed.iter().find(|a| **a == s) {
             Ok(found)
         } else {
-            let hint = suggest(s, allowed.iter().copied())
-                .map(|c| format!(" (did you mean `{c}`?)"))
-                .unwrap_or_default();
+            let hint = did_you_mean(s, allowed.iter().copied());
             Err(self.error(format!(
                 "`{s}` is not allowed here{hint}; allowed: {}",
                 allowed.join(", ")
@@ -271,6 +277,14 @@ pub fn suggest<'c>(word: &str, candidates: impl Iterator<Item = &'c str>) -> Opt
         .filter(|(d, c)| *d <= 2.max(c.len() / 3))
         .min_by_key(|(d, _)| *d)
         .map(|(_, c)| c)
+}
+
+/// The hint " (did you mean `NAME`?)" for the closest candidate within a small
+/// edit distance (see [`suggest`]), or nothing.
+pub fn did_you_mean<'c>(word: &str, candidates: impl Iterator<Item = &'c str>) -> String {
+    suggest(word, candidates)
+        .map(|c| format!(" (did you mean `{c}`?)"))
+        .unwrap_or_default()
 }
 
 impl<'a, 's> Tbl<'a, 's> {
@@ -391,9 +405,7 @@ impl<'a, 's> Tbl<'a, 's> {
         for (k, _) in items {
             let key: &str = k.get_ref().as_ref();
             if !used.iter().any(|u| u == key) {
-                let hint = suggest(key, known.iter().copied())
-                    .map(|c| format!(" (did you mean `{c}`?)"))
-                    .unwrap_or_default();
+                let hint = did_you_mean(key, known.iter().copied());
                 let span = k.span();
                 return Err(self.src.error(
                     &self.child_path(key),
