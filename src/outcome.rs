@@ -1,7 +1,7 @@
 //! Per-trial outcomes: what one future of the fleet yields under one policy.
 //!
 //! Owns: the outcome types and their cost arithmetic (totals, spend).
-//! May use: `model` (for the cost measure). No I/O.
+//! May use: `model` (for the cost measure), `dist` (its units). No I/O.
 
 use crate::dist::Hours;
 use crate::model::{CostBasis, Money};

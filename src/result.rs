@@ -1,8 +1,10 @@
 //! Machine-readable result shapes (the `--json` output and `result.json`).
 //!
-//! Owns: the serialisable form of an evaluation, built from a [`Summary`];
-//! domain types stay free of serde, this layer converts.
-//! May use: `summary`, `averages`, `model`, `serde`.
+//! Owns: the serialisable form of an evaluation and of a frontier, built
+//! from a [`Summary`] and a `FrontierResult`; domain types stay free of
+//! serde, this layer converts (the small value types of `summary` and
+//! `averages` it embeds as they are derive it themselves).
+//! May use: `summary`, `averages`, `model`, `frontier`, `recost`, `serde`.
 
 use serde::Serialize;
 

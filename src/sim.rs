@@ -4,7 +4,7 @@
 //! the per-trial bookkeeping of down time, counts and costs, following the
 //! rules and conventions of the reference model (see
 //! docs/scenario-format.md, "How the simulation reads these fields").
-//! May use: `model`, `dist`, `stream`, `outcome`, `uncertainty`. Does no
+//! May use: `model`, `dist`, `stream`, `outcome`. Does no
 //! I/O, cannot fail, and takes all its randomness from the trial's streams.
 //!
 //! With [`Model::parameter_uncertainty`] on, each trial first draws the life

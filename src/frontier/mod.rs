@@ -1,11 +1,12 @@
 //! The frontier search: the policies that no other policy beats on both
 //! cost and the chance of meeting the availability target.
 //!
-//! Owns: the search over replacement rules and stock levels, the
-//! non-dominated filter, the re-costing on fresh trials and the noise flags.
-//! May use: `sim`, `run`, `summary`, `model`, `analytic`, and `lp` (the one
-//! file that talks to good_lp). Reports progress through [`Progress`]; does
-//! no I/O.
+//! Owns: the search over replacement rules and stock levels and its
+//! result; the re-costing on fresh trials, the non-dominated filter and the
+//! noise flags are `recost`'s.
+//! May use: `sim`, `run`, `summary`, `model`, `recost` (its last step),
+//! `rayon`, and `lp` (the one file that talks to good_lp). Reports progress
+//! through [`Progress`]; does no I/O.
 //!
 //! How it searches (see DEVELOPERS.md for the reasoning):
 //! 1. **Screening.** Each part type is simulated alone (the other part types

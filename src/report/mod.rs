@@ -6,10 +6,11 @@
 //!
 //! Owns: turning a finished result into those files, and writing them so
 //! that a run failing half-way leaves the previous report intact.
-//! May use: `result`, `summary`, `frontier`, `averages`, `model`, `dist`,
-//! `analytic` (Poisson pipeline), `plotters`, `csv`, `serde_json`, and
-//! `sim`/`run` only to re-run the reported trials for `trials.csv` (see
-//! `tables`). It runs no other simulation and never prints.
+//! May use: `result`, `summary`, `frontier`, `recost`, `averages`, `model`,
+//! `dist`, `analytic` (Poisson pipeline), `text`, `files` (the staging
+//! folder), `run` (its progress observer), `plotters`, `serde_json`; and
+//! only in `tables`, `csv` and `sim` to re-run the reported trials for
+//! `trials.csv`. It runs no other simulation and never prints.
 //!
 //! Writing: every file is first written in full to a staging folder
 //! inside the target folder, then each is renamed over its old version

@@ -3,7 +3,8 @@
 //! them the figures single out, and the number formats people read.
 //!
 //! Owns: the report's view of a result and its formatting helpers.
-//! May use: `model`, `summary`, `frontier`, `averages`, `analytic`, `dist`.
+//! May use: `model`, `summary`, `recost`, `averages`, `analytic`, `dist`,
+//! `text`.
 //! No simulation, no I/O.
 
 use crate::analytic::PoissonPipeline;

@@ -4,7 +4,8 @@
 //! figures assume and the cautions.
 //!
 //! Owns: every sentence and table of `index.html` and `summary.md`.
-//! May use: `super::view`, `super::doc`, `model`. No simulation, no I/O.
+//! May use: `super::view`, `super::doc`, `model`, `recost`, `result`,
+//! `text`. No simulation, no I/O.
 
 use super::doc::{Align, Block, Figure, Span, b, c, t};
 use super::view::{
