@@ -284,6 +284,25 @@ impl Surrogate<'_> {
         self.budget.is_none_or(|b| self.capital(combo) <= b + 1e-9)
     }
 
+    /// Every combination one part type's option away from `cur` that fits
+    /// the budget, by part type, then option.
+    fn neighbours(&self, cur: &[u16]) -> Vec<Vec<u16>> {
+        let mut out = Vec::new();
+        for (p, opts) in self.screened.iter().enumerate() {
+            for o in 0..opts.len() as u16 {
+                if o == cur[p] {
+                    continue;
+                }
+                let mut next = cur.to_vec();
+                next[p] = o;
+                if self.fits(&next) {
+                    out.push(next);
+                }
+            }
+        }
+        out
+    }
+
     /// Per part type, the first option with the least `key`.
     fn least_per_part(&self, key: impl Fn(&Screened) -> f64) -> Vec<u16> {
         self.screened
@@ -686,28 +705,18 @@ fn marginal_path(sur: &mut Surrogate<'_>, start: &[u16]) -> Vec<Vec<u16>> {
         let (c0, _) = sur.score(&cur);
         let r0 = risk(sur, &cur);
         let mut best: Option<(f64, Vec<u16>)> = None;
-        for p in 0..cur.len() {
-            for o in 0..sur.screened[p].len() as u16 {
-                if o == cur[p] {
-                    continue;
-                }
-                let mut next = cur.clone();
-                next[p] = o;
-                if !sur.fits(&next) {
-                    continue;
-                }
-                let (c1, _) = sur.score(&next);
-                let r1 = risk(sur, &next);
-                let gain = r0 - r1;
-                if gain <= 1e-12 {
-                    continue;
-                }
-                let dc = c1 - c0;
-                // A change that is cheaper and safer is taken at once.
-                let ratio = if dc <= 0.0 { f64::INFINITY } else { gain / dc };
-                if best.as_ref().is_none_or(|(b, _)| ratio > *b) {
-                    best = Some((ratio, next));
-                }
+        for next in sur.neighbours(&cur) {
+            let (c1, _) = sur.score(&next);
+            let r1 = risk(sur, &next);
+            let gain = r0 - r1;
+            if gain <= 1e-12 {
+                continue;
+            }
+            let dc = c1 - c0;
+            // A change that is cheaper and safer is taken at once.
+            let ratio = if dc <= 0.0 { f64::INFINITY } else { gain / dc };
+            if best.as_ref().is_none_or(|(b, _)| ratio > *b) {
+                best = Some((ratio, next));
             }
         }
         match best {
@@ -836,20 +845,10 @@ fn pareto_local_search(
             break;
         }
         for cur in batch {
-            for p in 0..cur.len() {
-                for o in 0..sur.screened[p].len() as u16 {
-                    if o == cur[p] {
-                        continue;
-                    }
-                    let mut next = cur.clone();
-                    next[p] = o;
-                    if !sur.fits(&next) {
-                        continue;
-                    }
-                    let (c, k) = sur.score(&next);
-                    if add(&mut archive, next.clone(), c, k) {
-                        frontier_queue.push(next);
-                    }
+            for next in sur.neighbours(&cur) {
+                let (c, k) = sur.score(&next);
+                if add(&mut archive, next.clone(), c, k) {
+                    frontier_queue.push(next);
                 }
             }
         }
