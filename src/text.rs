@@ -1,6 +1,6 @@
 //! Words and number formats shared by the terminal's tables and the
-//! reports: numbers with thousands separators, money, and the caution every
-//! result carries.
+//! reports: numbers with thousands separators, money and its currency, and
+//! the caution every result carries.
 //!
 //! Owns: one home for each of these, so the terminal and the report never
 //! disagree on how a figure or the caution reads.
@@ -39,6 +39,16 @@ pub fn num(x: f64, decimals: usize) -> String {
     format!("{sign}{out}{frac}")
 }
 
+/// `before`, the currency and `after` (` (EUR)` from `" ("` and `")"`),
+/// or nothing when the scenario names no currency.
+pub fn currency(currency: &str, before: &str, after: &str) -> String {
+    if currency.is_empty() {
+        String::new()
+    } else {
+        format!("{before}{currency}{after}")
+    }
+}
+
 /// Money in whole units with separators: `2,791,450`.
 pub fn money(x: f64) -> String {
     num(x, 0)
@@ -58,5 +68,7 @@ mod tests {
         assert_eq!(num(f64::NAN, 1), "-");
         assert_eq!(num(f64::INFINITY, 0), "-");
         assert_eq!(money(2_791_450.4), "2,791,450");
+        assert_eq!(currency("EUR", " (", ")"), " (EUR)");
+        assert_eq!(currency("", " (", ")"), "");
     }
 }

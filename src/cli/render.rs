@@ -14,7 +14,7 @@ use wearout::recost::NoiseFlags;
 use wearout::result::{EvaluateJson, FrontierJson, cost_measure_label};
 use wearout::scenario::Loaded;
 use wearout::summary::MeanSe;
-use wearout::text::{CAUTION, money, num};
+use wearout::text::{CAUTION, currency, money, num};
 
 /// A result's text with the caution under it.
 fn cautioned(mut s: String) -> String {
@@ -102,11 +102,7 @@ pub fn check(loaded: &Loaded) -> String {
 
 /// The readable table of an evaluation.
 pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
-    let cur = if model.currency.is_empty() {
-        String::new()
-    } else {
-        format!(" ({})", model.currency)
-    };
+    let cur = currency(&model.currency, " (", ")");
     let mut s = String::new();
     s.push_str(&format!(
         "Scenario `{}`, policy `{}`: {} trials (seed {}), {} units over {} h{}\n\n",
@@ -245,11 +241,7 @@ pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
 
 /// The readable frontier table.
 pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
-    let cur = if model.currency.is_empty() {
-        String::new()
-    } else {
-        format!(" {}", model.currency)
-    };
+    let cur = currency(&model.currency, " ", "");
     let mut s = String::new();
     s.push_str(&format!(
         "Scenario `{}`: {} units over {} h, target availability {}\n",

@@ -13,7 +13,7 @@ use crate::dist::LeadTime;
 use crate::model::{CostBasis, CostMeasure, Model, Policy, Rule};
 use crate::recost::NoiseFlags;
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
-use crate::text::num;
+use crate::text::{currency, num};
 
 /// Chance levels the words and the level table speak of.
 pub const LEVELS: [f64; 7] = [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99];
@@ -172,20 +172,12 @@ impl<'a> View<'a> {
 
     /// The currency, with a leading space, or nothing.
     pub fn cur(&self) -> String {
-        if self.model.currency.is_empty() {
-            String::new()
-        } else {
-            format!("\u{a0}{}", self.model.currency)
-        }
+        currency(&self.model.currency, "\u{a0}", "")
     }
 
     /// The currency in brackets, with a leading space, or nothing.
     pub fn cur_paren(&self) -> String {
-        if self.model.currency.is_empty() {
-            String::new()
-        } else {
-            format!(" ({})", self.model.currency)
-        }
+        currency(&self.model.currency, " (", ")")
     }
 }
 
@@ -273,6 +265,16 @@ pub fn chance_pct(x: f64) -> String {
     } else {
         format!("{p:.0}\u{a0}%")
     }
+}
+
+/// A chance with its 95 % interval: `76 % [73 % to 79 %]`.
+pub fn chance_with_interval(c: &Chance) -> String {
+    format!(
+        "{} [{} to {}]",
+        chance_pct(c.value),
+        chance_pct(c.lo),
+        chance_pct(c.hi)
+    )
 }
 
 /// An availability (or share) as a percentage with one decimal.

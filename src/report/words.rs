@@ -9,8 +9,8 @@
 
 use super::doc::{Align, Block, Figure, Span, b, c, t};
 use super::view::{
-    Kind, LEVELS, PolicyView, View, chance_pct, count_words, display, hours, lead_time_words,
-    money_short, pct_trim, pct1, rule_short, rule_words, trim,
+    Kind, LEVELS, PolicyView, View, chance_pct, chance_with_interval, count_words, display, hours,
+    lead_time_words, money_short, pct_trim, pct1, rule_short, rule_words, trim,
 };
 use crate::model::{CostBasis, CostStatistic, Model, Rule};
 use crate::recost::NoiseFlags;
@@ -402,12 +402,7 @@ fn levels(v: &View<'_>) -> Vec<Block> {
                 rows.push(vec![
                     label,
                     p.name().to_string(),
-                    format!(
-                        "{} [{} to {}]",
-                        chance_pct(p.chance.value),
-                        chance_pct(p.chance.lo),
-                        chance_pct(p.chance.hi)
-                    ),
+                    chance_with_interval(&p.chance),
                     money(p.cost.mean),
                     extra,
                     settings(v.model, p),
@@ -798,12 +793,7 @@ fn all_policies(v: &View<'_>) -> Vec<Block> {
             let a = p.summary.availability();
             vec![
                 p.name().to_string(),
-                format!(
-                    "{} [{} to {}]",
-                    chance_pct(p.chance.value),
-                    chance_pct(p.chance.lo),
-                    chance_pct(p.chance.hi)
-                ),
+                chance_with_interval(&p.chance),
                 format!("{}\u{a0}±\u{a0}{}", money(p.cost.mean), money(p.cost.se)),
                 format!(
                     "{:.1} / {:.1} / {}",

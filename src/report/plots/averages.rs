@@ -99,15 +99,11 @@ pub fn averages(v: &View<'_>) -> Result<String, ReportError> {
                     money_short(*x)
                 }
             };
-            chart
-                .configure_mesh()
+            axes(&mut chart.configure_mesh(), 12, 12)
                 .disable_y_mesh()
                 .y_labels(0)
                 .x_label_formatter(&fmt)
-                .bold_line_style(GRID.stroke_width(1))
                 .max_light_lines(0)
-                .axis_style(SOFT.stroke_width(1))
-                .label_style((FONT, 12).into_font().color(&INK))
                 .x_labels(7)
                 .draw()
                 .map_err(pe(FIG))?;
@@ -150,18 +146,7 @@ pub fn averages(v: &View<'_>) -> Result<String, ReportError> {
                     let (lx, ly) = chart.backend_coord(&(x0, y));
                     let i = idx[r];
                     let chosen = v.chosen.contains(&i);
-                    text(
-                        root,
-                        v.policies[i].name(),
-                        (lx - 8, ly),
-                        &style(
-                            if chosen { 14.0 } else { 13.0 },
-                            &INK,
-                            HPos::Right,
-                            VPos::Center,
-                        ),
-                        FIG,
-                    )?;
+                    row_label(root, v.policies[i].name(), (lx, ly), chosen, FIG)?;
                 }
             }
         }

@@ -66,8 +66,7 @@ pub fn costs(v: &View<'_>) -> Result<String, ReportError> {
             .y_label_area_size(70)
             .build_cartesian_2d(0f64..x1, -0.5f64..(n as f64 - 0.5))
             .map_err(pe(FIG))?;
-        chart
-            .configure_mesh()
+        axes(&mut chart.configure_mesh(), 13, 14)
             .disable_y_mesh()
             .y_labels(0)
             .x_desc(format!(
@@ -79,11 +78,7 @@ pub fn costs(v: &View<'_>) -> Result<String, ReportError> {
                 }
             ))
             .x_label_formatter(&|x| money_short(*x))
-            .bold_line_style(GRID.stroke_width(1))
             .max_light_lines(0)
-            .axis_style(SOFT.stroke_width(1))
-            .label_style((FONT, 13).into_font().color(&INK))
-            .axis_desc_style((FONT, 14).into_font().color(&INK))
             .x_labels(10)
             .draw()
             .map_err(pe(FIG))?;
@@ -130,18 +125,7 @@ pub fn costs(v: &View<'_>) -> Result<String, ReportError> {
                 .map_err(pe(FIG))?;
             let (lx, ly) = chart.backend_coord(&(0.0, y));
             let chosen = v.chosen.contains(&i);
-            text(
-                root,
-                p.name(),
-                (lx - 8, ly),
-                &style(
-                    if chosen { 14.0 } else { 13.0 },
-                    &INK,
-                    HPos::Right,
-                    VPos::Center,
-                ),
-                FIG,
-            )?;
+            row_label(root, p.name(), (lx, ly), chosen, FIG)?;
             let measure_mean = match basis {
                 CostBasis::Spend => p.summary.acc.spend.mean() + p.summary.initial_stock_capital,
                 CostBasis::TotalWithPenalty => p.summary.acc.total.mean(),

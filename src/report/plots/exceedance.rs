@@ -36,17 +36,12 @@ pub fn exceedance(v: &View<'_>) -> Result<String, ReportError> {
             .y_label_area_size(64)
             .build_cartesian_2d(x0..x1, 0f64..1.02f64)
             .map_err(pe(FIG))?;
-        chart
-            .configure_mesh()
+        axes(&mut chart.configure_mesh(), 13, 14)
             .x_desc("Fleet availability over the horizon (at least)")
             .y_desc("Chance (share of trials)")
             .x_label_formatter(&|x| pct_trim(*x, 1))
             .y_label_formatter(&|y| format!("{:.0} %", 100.0 * y))
-            .bold_line_style(GRID.stroke_width(1))
             .light_line_style(GRID.mix(0.45).stroke_width(1))
-            .axis_style(SOFT.stroke_width(1))
-            .label_style((FONT, 13).into_font().color(&INK))
-            .axis_desc_style((FONT, 14).into_font().color(&INK))
             .x_labels(12)
             .y_labels(11)
             .draw()

@@ -57,8 +57,7 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
             .y_label_area_size(64)
             .build_cartesian_2d(x0..x1, y0..1.04f64)
             .map_err(pe(FIG))?;
-        chart
-            .configure_mesh()
+        axes(&mut chart.configure_mesh(), 13, 14)
             .x_desc(format!(
                 "{} over the horizon{}",
                 cost_measure_label(v.measure),
@@ -70,11 +69,7 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
             ))
             .x_label_formatter(&|x| money_short(*x))
             .y_label_formatter(&|y| format!("{:.0}\u{a0}%", 100.0 * y))
-            .bold_line_style(GRID.stroke_width(1))
             .max_light_lines(0)
-            .axis_style(SOFT.stroke_width(1))
-            .label_style((FONT, 13).into_font().color(&INK))
-            .axis_desc_style((FONT, 14).into_font().color(&INK))
             .x_labels(10)
             .y_labels(11)
             .draw()

@@ -97,16 +97,11 @@ pub fn life(v: &View<'_>) -> Result<String, ReportError> {
                 .y_label_area_size(52)
                 .build_cartesian_2d(0f64..x_hi, 0f64..1.02f64)
                 .map_err(pe(FIG))?;
-            chart
-                .configure_mesh()
+            axes(&mut chart.configure_mesh(), 12, 12)
                 .x_desc("Age (operating hours)")
                 .x_label_formatter(&|x| crate::text::num(*x, 0))
                 .y_label_formatter(&|y| format!("{:.0} %", 100.0 * y))
-                .bold_line_style(GRID.stroke_width(1))
                 .max_light_lines(0)
-                .axis_style(SOFT.stroke_width(1))
-                .label_style((FONT, 12).into_font().color(&INK))
-                .axis_desc_style((FONT, 12).into_font().color(&INK))
                 .x_labels(6)
                 .y_labels(6)
                 .draw()

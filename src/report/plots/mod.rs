@@ -29,6 +29,8 @@ pub use stock::stock;
 
 use std::collections::HashSet;
 
+use plotters::chart::MeshStyle;
+use plotters::coord::ranged1d::Ranged;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
@@ -103,6 +105,39 @@ fn text(
 ) -> Result<(), ReportError> {
     root.draw(&Text::new(s.to_string(), at, st.clone()))
         .map_err(pe(figure))
+}
+
+/// The figures' axes on `mesh`: grid lines at the labelled ticks, soft
+/// axis lines, tick labels in ink at `label` points and axis titles at
+/// `desc` points.
+fn axes<'m, 'a, 'b, X: Ranged, Y: Ranged, DB: DrawingBackend>(
+    mesh: &'m mut MeshStyle<'a, 'b, X, Y, DB>,
+    label: u32,
+    desc: u32,
+) -> &'m mut MeshStyle<'a, 'b, X, Y, DB> {
+    mesh.bold_line_style(GRID.stroke_width(1))
+        .axis_style(SOFT.stroke_width(1))
+        .label_style((FONT, label).into_font().color(&INK))
+        .axis_desc_style((FONT, desc).into_font().color(&INK))
+}
+
+/// A policy's name left of its row, which starts at pixel `at`; larger
+/// when the policy is singled out.
+fn row_label(
+    root: &Root<'_>,
+    name: &str,
+    at: (i32, i32),
+    chosen: bool,
+    figure: &'static str,
+) -> Result<(), ReportError> {
+    let size = if chosen { 14.0 } else { 13.0 };
+    text(
+        root,
+        name,
+        (at.0 - 8, at.1),
+        &style(size, &INK, HPos::Right, VPos::Center),
+        figure,
+    )
 }
 
 /// A row of legend entries drawn at pixel `(x, y)`: a swatch drawn by

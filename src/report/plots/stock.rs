@@ -49,17 +49,12 @@ pub fn stock(v: &View<'_>) -> Result<String, ReportError> {
                 .y_label_area_size(44)
                 .build_cartesian_2d(-0.5f64..(nk as f64 - 0.5), 0f64..y_max)
                 .map_err(pe(FIG))?;
-            chart
-                .configure_mesh()
+            axes(&mut chart.configure_mesh(), 12, 12)
                 .disable_x_mesh()
                 .x_labels(0)
                 .y_desc("Spares")
                 .y_label_formatter(&|y| format!("{y:.0}"))
-                .bold_line_style(GRID.stroke_width(1))
                 .max_light_lines(0)
-                .axis_style(SOFT.stroke_width(1))
-                .label_style((FONT, 12).into_font().color(&INK))
-                .axis_desc_style((FONT, 12).into_font().color(&INK))
                 .y_labels((y_max as usize + 1).min(8))
                 .draw()
                 .map_err(pe(FIG))?;
