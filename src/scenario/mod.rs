@@ -583,6 +583,25 @@ fn read_part(
     })
 }
 
+/// The index of the part type named `name`, or an error at `at` saying
+/// that `who` names a part type the scenario does not define, with the
+/// closest name and the list.
+fn part_named(
+    parts: &[PartType],
+    name: &str,
+    at: &Val<'_, '_>,
+    who: &str,
+) -> Result<usize, ScenarioError> {
+    parts.iter().position(|p| p.name == name).ok_or_else(|| {
+        let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
+        at.error(format!(
+            "{who} names part type `{name}`, which the scenario does not define{}; part types: {}",
+            did_you_mean(name, names.iter().copied()),
+            names.join(", ")
+        ))
+    })
+}
+
 fn check_name(v: &Val<'_, '_>, name: &str) -> Result<(), ScenarioError> {
     if !name.is_empty()
         && name
@@ -700,21 +719,16 @@ fn read_rule(t: &Tbl<'_, '_>, part: &PartType) -> Result<Rule, ScenarioError> {
 
 fn read_policy(name: &str, v: Val<'_, '_>, parts: &[PartType]) -> Result<Policy, ScenarioError> {
     let t = v.table()?;
-    let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
     let mut out: Vec<Option<PartPolicy>> = vec![None; parts.len()];
     t.entries(|key, v| {
-        let Some(pid) = parts.iter().position(|p| p.name == key) else {
-            let hint = did_you_mean(key, names.iter().copied());
-            return Err(v.error(format!(
-                "policy names part type `{key}`, which the scenario does not define{hint}; part types: {}",
-                names.join(", ")
-            )));
-        };
+        let pid = part_named(parts, key, &v, "policy")?;
         let pt = v.table()?;
         let rule = read_rule(&pt, &parts[pid])?;
-        let stock = pt.need("stock", "base-stock level S (a whole number, 0 or more)", |v| {
-            v.integer(0, 100_000)
-        })? as u32;
+        let stock = pt.need(
+            "stock",
+            "base-stock level S (a whole number, 0 or more)",
+            |v| v.integer(0, 100_000),
+        )? as u32;
         pt.finish(&["rule", "interval_hours", "interval_fraction", "stock"])?;
         out[pid] = Some(PartPolicy { rule, stock });
         Ok(())
@@ -919,7 +933,6 @@ fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, Scenar
     let validate_trials = t
         .with("validate_trials", |v| v.integer(1, 100_000_000))?
         .unwrap_or(10_000) as u64;
-    let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
     // [search.every_part] fills in what a part's own table leaves out.
     let every_raw = t.with("every_part", |v| Ok((v.value.clone(), v.span)))?;
     let every_path = t.child_path("every_part");
@@ -944,12 +957,7 @@ fn read_search(v: Val<'_, '_>, parts: &[PartType]) -> Result<SearchSpace, Scenar
     t.with("parts", |v| {
         let pt = v.table()?;
         pt.entries(|key, v| {
-            let Some(pid) = parts.iter().position(|p| p.name == key) else {
-                let hint = did_you_mean(key, names.iter().copied());
-                return Err(v.error(format!(
-                    "the search names part type `{key}`, which the scenario does not define{hint}"
-                )));
-            };
+            let pid = part_named(parts, key, &v, "the search")?;
             let tb = v.table()?;
             let ps = read_part_search(&tb, &parts[pid], every_tbl.as_ref())?;
             tb.finish(SEARCH_PART_KEYS)?;
@@ -1147,60 +1155,74 @@ fn read_parts(
 
 /// `[units.NAME]`: unit types as lists of positions of part types.
 fn read_unit_types(root: &Tbl<'_, '_>, parts: &[PartType]) -> Result<Vec<UnitType>, ScenarioError> {
-    let part_names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
-    root.need("units", "at least one [units.NAME] table with positions", |v| {
-        let t = v.table()?;
-        let out = t.entries(|key, v| {
-            check_name(&v, key)?;
-            let ut = v.table()?;
-            let mut counts = std::collections::HashMap::<String, usize>::new();
-            let positions = ut.need("positions", "a list of part types, e.g. [\"engine\", \"pump\", \"pump\"]", |v| {
-                let ps = each(&v, |x| {
-                    let (pname, part) = if x.is_table() {
-                        let pt = x.table()?;
-                        let n = pt.need("name", "the position's name", |v| v.string().map(str::to_string))?;
-                        let p = pt.need("part", "the part type it holds", |v| v.string().map(str::to_string))?;
-                        pt.finish(&["name", "part"])?;
-                        (Some(n), p)
-                    } else {
-                        (None, x.string()?.to_string())
-                    };
-                    let Some(pid) = parts.iter().position(|p| p.name == part) else {
-                        let hint = did_you_mean(&part, part_names.iter().copied());
-                        return Err(x.error(format!(
-                            "position names part type `{part}`, which is not defined{hint}; part types: {}",
-                            part_names.join(", ")
-                        )));
-                    };
-                    let c = counts.entry(part.clone()).or_insert(0);
-                    *c += 1;
-                    let name = pname.unwrap_or_else(|| if *c == 1 { part.clone() } else { format!("{part}#{c}") });
-                    Ok(Position { name, part: pid })
-                })?;
-                if ps.is_empty() {
-                    return Err(v.error("a unit type needs at least one position"));
-                }
-                for (i, p) in ps.iter().enumerate() {
-                    if ps[..i].iter().any(|q: &Position| q.name == p.name) {
-                        return Err(v.error(format!(
-                            "two positions are named `{}`; position names must differ",
-                            p.name
-                        )));
-                    }
-                }
-                if ps.len() > 65_000 {
-                    return Err(v.error("at most 65 000 positions per unit type"));
-                }
-                Ok(ps)
+    root.need(
+        "units",
+        "at least one [units.NAME] table with positions",
+        |v| {
+            let t = v.table()?;
+            let out = t.entries(|key, v| {
+                check_name(&v, key)?;
+                let ut = v.table()?;
+                let mut counts = std::collections::HashMap::<String, usize>::new();
+                let positions = ut.need(
+                    "positions",
+                    "a list of part types, e.g. [\"engine\", \"pump\", \"pump\"]",
+                    |v| {
+                        let ps = each(&v, |x| {
+                            let (pname, part) = if x.is_table() {
+                                let pt = x.table()?;
+                                let n = pt.need("name", "the position's name", |v| {
+                                    v.string().map(str::to_string)
+                                })?;
+                                let p = pt.need("part", "the part type it holds", |v| {
+                                    v.string().map(str::to_string)
+                                })?;
+                                pt.finish(&["name", "part"])?;
+                                (Some(n), p)
+                            } else {
+                                (None, x.string()?.to_string())
+                            };
+                            let pid = part_named(parts, &part, &x, "position")?;
+                            let c = counts.entry(part.clone()).or_insert(0);
+                            *c += 1;
+                            let name = pname.unwrap_or_else(|| {
+                                if *c == 1 {
+                                    part.clone()
+                                } else {
+                                    format!("{part}#{c}")
+                                }
+                            });
+                            Ok(Position { name, part: pid })
+                        })?;
+                        if ps.is_empty() {
+                            return Err(v.error("a unit type needs at least one position"));
+                        }
+                        for (i, p) in ps.iter().enumerate() {
+                            if ps[..i].iter().any(|q: &Position| q.name == p.name) {
+                                return Err(v.error(format!(
+                                    "two positions are named `{}`; position names must differ",
+                                    p.name
+                                )));
+                            }
+                        }
+                        if ps.len() > 65_000 {
+                            return Err(v.error("at most 65 000 positions per unit type"));
+                        }
+                        Ok(ps)
+                    },
+                )?;
+                ut.finish(&["positions"])?;
+                Ok(UnitType {
+                    name: key.to_string(),
+                    positions,
+                })
             })?;
-            ut.finish(&["positions"])?;
-            Ok(UnitType { name: key.to_string(), positions })
-        })?;
-        if out.is_empty() {
-            return Err(v.error("define at least one unit type as [units.NAME]"));
-        }
-        Ok(out)
-    })
+            if out.is_empty() {
+                return Err(v.error("define at least one unit type as [units.NAME]"));
+            }
+            Ok(out)
+        },
+    )
 }
 
 /// `[[fleet]]`: how many units of each type, and their parts' initial
@@ -1211,7 +1233,6 @@ fn read_fleet(
     unit_types: &[UnitType],
     defaults: &Defaults,
 ) -> Result<Vec<FleetGroup>, ScenarioError> {
-    let part_names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
     let unit_names: Vec<&str> = unit_types.iter().map(|u| u.name.as_str()).collect();
     root.need(
         "fleet",
@@ -1237,12 +1258,7 @@ fn read_fleet(
                 t.with("initial_age_by_part", |v| {
                     let bt = v.table()?;
                     bt.entries(|key, v| {
-                        let Some(pid) = parts.iter().position(|p| p.name == key) else {
-                            return Err(v.error(format!(
-                                "part type `{key}` is not defined; part types: {}",
-                                part_names.join(", ")
-                            )));
-                        };
+                        let pid = part_named(parts, key, &v, "initial_age_by_part")?;
                         by_part.push((pid, read_age(v)?));
                         Ok(())
                     })?;
