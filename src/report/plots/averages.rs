@@ -58,12 +58,11 @@ pub fn averages(v: &View<'_>) -> Result<String, ReportError> {
         CostBasis::TotalWithPenalty => "Total cost",
     };
     draw(FIG, height, |root| {
-        let inner = root
-            .titled(
-                "The plan on averages beside the simulated futures",
-                (FONT, 20).into_font().color(&INK),
-            )
-            .map_err(pe(FIG))?;
+        let inner = titled(
+            root,
+            "The plan on averages beside the simulated futures",
+            FIG,
+        )?;
         let (body, foot) = inner.split_vertically(height - 70);
         let (left, right) = body.split_horizontally(WIDTH * 54 / 100);
         let sim = PALETTE[0];

@@ -249,6 +249,31 @@ fn text_width(s: &str, size: f64) -> i32 {
     (s.chars().count() as f64 * size * 0.56).ceil() as i32
 }
 
+/// The figure's area under its title.
+fn titled<'a>(root: &Root<'a>, title: &str, figure: &'static str) -> Result<Root<'a>, ReportError> {
+    root.titled(title, (FONT, 20).into_font().color(&INK))
+        .map_err(pe(figure))
+}
+
+/// A figure of one panel per part type, `panel_h` pixels high, two to a
+/// row, under `title`, with a foot for the legend: `body` draws on the
+/// whole figure, its panels (in part-type order) and its foot.
+fn part_panels(
+    figure: &'static str,
+    parts: usize,
+    panel_h: u32,
+    title: &str,
+    body: impl FnOnce(&Root<'_>, &[Root<'_>], &Root<'_>) -> Result<(), ReportError>,
+) -> Result<String, ReportError> {
+    let (rows, cols) = panels(parts);
+    let height = 60 + panel_h * rows as u32 + 36;
+    draw(figure, height, |root| {
+        let inner = titled(root, title, figure)?;
+        let (panels_area, foot) = inner.split_vertically(panel_h * rows as u32);
+        body(root, &panels_area.split_evenly((rows, cols)), &foot)
+    })
+}
+
 /// Panels for `n` part types: (rows, columns).
 fn panels(n: usize) -> (usize, usize) {
     let cols = if n > 1 { 2 } else { 1 };
