@@ -18,18 +18,15 @@
 //! timing has no random-numbers-alone comparison (the draws of repairs,
 //! condemnations and transport are not counted by `draw_only`).
 
+#[path = "../tests/common/mod.rs"]
+mod common;
+
 use std::time::Instant;
 
+use common::peak_rss_mb;
 use rayon::prelude::*;
 use wearout::run::{Quiet, evaluate};
 use wearout::sim::{DrawCounts, Simulator, Workspace};
-
-fn peak_rss_mb() -> Option<f64> {
-    let s = std::fs::read_to_string("/proc/self/status").ok()?;
-    let line = s.lines().find(|l| l.starts_with("VmHWM:"))?;
-    let kb: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
-    Some(kb / 1024.0)
-}
 
 fn median(mut v: Vec<f64>) -> f64 {
     v.sort_by(f64::total_cmp);
@@ -47,18 +44,8 @@ fn main() {
     let args: Vec<String> = std::env::args().collect();
     let million = args.iter().any(|a| a == "--million");
     let b2 = args.iter().any(|a| a == "--b2");
-    let (name, path) = if b2 {
-        (
-            "B2",
-            concat!(env!("CARGO_MANIFEST_DIR"), "/scenarios/b2.toml"),
-        )
-    } else {
-        (
-            "B1",
-            concat!(env!("CARGO_MANIFEST_DIR"), "/scenarios/b1.toml"),
-        )
-    };
-    let model = wearout::scenario::load(std::path::Path::new(path)).expect("scenario loads");
+    let name = if b2 { "B2" } else { "B1" };
+    let model = common::load(&name.to_lowercase());
     let policy = model.policy("reference").expect("reference policy").clone();
     let sim = Simulator::new(&model, &policy);
 
@@ -148,26 +135,17 @@ fn main() {
     let mut events = 0u64;
     let counts: Vec<DrawCounts> = (0..n)
         .map(|t| {
-            events += sim.run(t, &mut ws).events;
-            ws.draw_counts()
+            let o = sim.run(t, &mut ws);
+            events += o.events;
+            ws.draw_counts(&o)
         })
         .collect();
-    let draws: u64 = counts
-        .iter()
-        .map(|c| {
-            c.lives
-                .iter()
-                .chain(&c.leads)
-                .map(|&k| k as u64)
-                .sum::<u64>()
-        })
-        .sum();
 
     // Warm up.
     let _ = evaluate(&model, &policy, 0..500, model.target, &Quiet);
 
     let (mut engine, mut rng) = (Vec::new(), Vec::new());
-    let mut checksum = 0.0;
+    let (mut checksum, mut draws) = (0.0, 0u64);
     let mut availability = (0.0, 0.0);
     for _ in 0..3 {
         // 1. The whole engine, as `wearout evaluate` runs it.
@@ -181,11 +159,11 @@ fn main() {
 
         // 2. Only the random numbers: the same draws, nothing else.
         let t1 = Instant::now();
-        checksum = counts
+        (checksum, draws) = counts
             .par_iter()
             .enumerate()
             .map_init(Vec::new, |lives, (t, c)| sim.draw_only(t as u64, c, lives))
-            .sum::<f64>();
+            .reduce(|| (0.0, 0), |a, b| (a.0 + b.0, a.1 + b.1));
         rng.push(t1.elapsed().as_secs_f64());
     }
     let (engine_s, rng_s) = (median(engine.clone()), median(rng.clone()));

@@ -6,15 +6,15 @@
 //! over all 8 000 policies on the scenario's 500 search trials (target:
 //! under a minute), and the search on the same trials beside it.
 
+#[path = "../tests/common/mod.rs"]
+mod common;
+
 use std::time::Instant;
+
+use common::load;
 
 use wearout::frontier::{FrontierConfig, FrontierResult, hypervolume, search};
 use wearout::run::Quiet;
-
-fn load(name: &str) -> wearout::model::Model {
-    let path = format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"));
-    wearout::scenario::load(std::path::Path::new(&path)).expect("scenario loads")
-}
 
 fn config(
     search_trials: u64,

@@ -9,26 +9,20 @@
 //! Every row prints microseconds per trial (and per truck-trial or per
 //! 1 000 h-trial); linear growth shows as a flat column.
 
+#[path = "../tests/common/mod.rs"]
+mod common;
+
 use std::time::Instant;
+
+use common::peak_rss_mb;
 
 use wearout::model::Model;
 use wearout::run::{Quiet, evaluate};
-use wearout::shard::{self, RunKind, ShardHeader, ShardSpec, Source};
-
-fn peak_rss_mb() -> Option<f64> {
-    let s = std::fs::read_to_string("/proc/self/status").ok()?;
-    let line = s.lines().find(|l| l.starts_with("VmHWM:"))?;
-    let kb: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
-    Some(kb / 1024.0)
-}
-
-fn b1_text() -> String {
-    let path = concat!(env!("CARGO_MANIFEST_DIR"), "/scenarios/b1.toml");
-    std::fs::read_to_string(path).expect("b1 readable")
-}
+use wearout::scenario::Source;
+use wearout::shard::{self, RunKind, ShardHeader, ShardSpec};
 
 fn b1_with(trucks: usize, horizon: f64) -> (Model, String) {
-    let text = b1_text()
+    let text = common::scenario_text("b1")
         .replacen("count = 40", &format!("count = {trucks}"), 1)
         .replacen(
             "horizon_hours = 30000",

@@ -16,17 +16,15 @@ use std::collections::BinaryHeap;
 use statrs::function::gamma::ln_gamma;
 use thiserror::Error;
 
-use crate::dist::{Hours, Life};
+use crate::dist::{self, DistError, Hours, Life};
 
 /// Why an analytic computation could not be done.
 #[derive(Debug, Error, Clone, PartialEq)]
 pub enum AnalyticError {
-    /// A figure that must be finite and strictly positive was not.
-    #[error("{name} must be a finite number greater than 0 (got {value})")]
-    NotPositive { name: &'static str, value: f64 },
-    /// A figure that must be finite and at least zero was not.
-    #[error("{name} must be a finite number of at least 0 (got {value})")]
-    Negative { name: &'static str, value: f64 },
+    /// A figure that must be finite and greater than 0, or at least 0,
+    /// was not (checked as `dist` checks its parameters).
+    #[error(transparent)]
+    Input(#[from] DistError),
     /// A grid needs at least one step.
     #[error("the number of grid steps must be at least 1 (got 0)")]
     NoSteps,
@@ -47,19 +45,11 @@ pub enum AnalyticError {
 }
 
 fn positive(name: &'static str, value: f64) -> Result<f64, AnalyticError> {
-    if value > 0.0 && value.is_finite() {
-        Ok(value)
-    } else {
-        Err(AnalyticError::NotPositive { name, value })
-    }
+    Ok(dist::positive(name, value)?)
 }
 
 fn non_negative(name: &'static str, value: f64) -> Result<f64, AnalyticError> {
-    if value >= 0.0 && value.is_finite() {
-        Ok(value)
-    } else {
-        Err(AnalyticError::Negative { name, value })
-    }
+    Ok(dist::non_negative(name, value)?)
 }
 
 /// The best interval of a replacement policy and the objective there.
@@ -672,6 +662,16 @@ impl PoissonPipeline {
         }
     }
 
+    /// The quantile `q`: the smallest `k` with `P(X <= k) >= q` (searched
+    /// up to 100 000).
+    pub fn quantile(&self, q: f64) -> u32 {
+        let mut k = 0;
+        while self.cdf(k) < q && k < 100_000 {
+            k += 1;
+        }
+        k
+    }
+
     /// `P(X > k)`.
     pub fn sf(&self, k: u32) -> f64 {
         if self.mean == 0.0 {
@@ -843,10 +843,11 @@ pub fn marginal_allocation(
         positive("spare price", p)?;
     }
     if budget.is_nan() || budget < 0.0 {
-        return Err(AnalyticError::Negative {
+        return Err(DistError::Negative {
             name: "budget",
             value: budget,
-        });
+        }
+        .into());
     }
     non_negative("target total EBO", target_ebo)?;
     if budget.is_infinite() && target_ebo <= 0.0 {
@@ -1020,7 +1021,7 @@ mod tests {
         let life = Life::weibull(2.0, 1.0).unwrap();
         assert!(matches!(
             optimal_age_interval(&life, 0.0, 1.0),
-            Err(AnalyticError::NotPositive { .. })
+            Err(AnalyticError::Input(DistError::NotPositive { .. }))
         ));
         assert!(optimal_block_interval(&life, 1.0, f64::NAN).is_err());
         assert!(RenewalGrid::new(&life, 1.0, 0).is_err());
@@ -1121,6 +1122,24 @@ mod tests {
                 close(p.cdf(s) + p.sf(s), 1.0, 1e-13);
             }
         }
+    }
+
+    #[test]
+    fn poisson_quantiles_match_tables() {
+        // Poisson cumulative table (e.g. CRC Standard Probability and
+        // Statistics Tables; figures from memory, checked by summing the
+        // pmf by hand): mean 2, P(N <= 4) = 0.9473, P(N <= 5) = 0.9834, so
+        // the 95 % quantile is 5 and the 90 % quantile is 4.
+        let two = PoissonPipeline::new(2.0).unwrap();
+        assert_eq!(two.quantile(0.95), 5);
+        assert_eq!(two.quantile(0.90), 4);
+        // Mean 0.5: P(N = 0) = e^-0.5 = 0.6065, so the 50 % quantile is 0.
+        let half = PoissonPipeline::new(0.5).unwrap();
+        assert_eq!(half.quantile(0.5), 0);
+        // Fill rate with s = 1: P(N = 0) = e^-m.
+        close(half.fill_rate(1), (-0.5f64).exp(), 1e-12);
+        // An empty pipeline: every quantile is 0.
+        assert_eq!(PoissonPipeline::new(0.0).unwrap().quantile(0.999), 0);
     }
 
     #[test]

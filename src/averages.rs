@@ -6,7 +6,8 @@
 //! interval if that comes first), each order takes exactly the mean lead
 //! time, demand flows evenly, and a stock of `S` covers `S / d` hours of
 //! lead time at demand rate `d`. Initial ages are ignored (steady state).
-//! May use: `model`. No randomness, no I/O.
+//! May use: `model`, `serde` (a derive on the plan, which `result`
+//! embeds). No randomness, no I/O.
 //!
 //! Per position, an operating cycle lasts `c` hours (the mean life, or the
 //! interval `T` when `T` is shorter; for block replacement the same reading

@@ -56,7 +56,8 @@ pub enum DistError {
     NotFinite { name: &'static str, value: f64 },
 }
 
-fn positive(name: &'static str, value: f64) -> Result<f64, DistError> {
+/// `value` if it is finite and greater than 0.
+pub(crate) fn positive(name: &'static str, value: f64) -> Result<f64, DistError> {
     // Written so that NaN fails the comparison.
     if value > 0.0 && value.is_finite() {
         Ok(value)
@@ -65,7 +66,8 @@ fn positive(name: &'static str, value: f64) -> Result<f64, DistError> {
     }
 }
 
-fn non_negative(name: &'static str, value: f64) -> Result<f64, DistError> {
+/// `value` if it is finite and at least 0.
+pub(crate) fn non_negative(name: &'static str, value: f64) -> Result<f64, DistError> {
     if value >= 0.0 && value.is_finite() {
         Ok(value)
     } else {

@@ -33,7 +33,7 @@ use crate::run::BLOCK;
 pub const EVENTS_PER_RENEWAL: f64 = 2.0;
 /// Engine time per event and per position of the event's unit, in
 /// nanoseconds, on one core of the project's 2-core machine (calibrated on
-/// B1's reference policy: see DEVELOPERS.md, "Scale").
+/// B1's reference policy: see docs/performance.md, "Measured figures").
 pub const NS_PER_EVENT: f64 = 120.0;
 /// Engine time per position per trial (drawing the initial ages and lives;
 /// measured on a fleet of a million units, where memory traffic dominates).
@@ -65,7 +65,7 @@ pub const MODEL_BYTES_PER_UNIT: f64 = 100.0;
 /// Memory of the process before any run (program, runtime, buffers).
 pub const BASE_BYTES: f64 = 24.0e6;
 /// Shard-file bytes per record: a fixed part and a part per part type
-/// (measured on B1; see DEVELOPERS.md).
+/// (measured on B1; see docs/performance.md).
 pub const SHARD_BYTES_FIXED: f64 = 36.0;
 pub const SHARD_BYTES_PER_PART: f64 = 26.0;
 

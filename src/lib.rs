@@ -5,10 +5,10 @@
 
 pub mod analytic;
 pub mod averages;
-pub mod cli;
 pub mod dist;
 pub mod echelon;
 pub mod estimate;
+pub mod files;
 pub mod fit;
 pub mod frontier;
 pub mod model;
@@ -22,4 +22,5 @@ pub mod shard;
 pub mod sim;
 pub mod stream;
 pub mod summary;
+pub mod text;
 pub mod uncertainty;

@@ -1,5 +1,7 @@
-//! The `wearout` binary: all the work is in the library.
+//! The `wearout` binary: the command line (`cli`) over the library.
+
+mod cli;
 
 fn main() -> std::process::ExitCode {
-    wearout::cli::main()
+    cli::main()
 }

@@ -244,6 +244,16 @@ impl Rule {
         }
     }
 
+    /// Compact form for tables: `RTF`, `A11200`, `B6000` (hours with one
+    /// decimal when not whole).
+    pub fn short(&self) -> String {
+        match *self {
+            Rule::RunToFailure => "RTF".to_string(),
+            Rule::Age(t) => format!("A{}", fmt_hours(t)),
+            Rule::Block(t) => format!("B{}", fmt_hours(t)),
+        }
+    }
+
     /// Human-readable form, e.g. `age 11200 h`.
     pub fn describe(&self) -> String {
         match *self {
@@ -388,17 +398,12 @@ impl Policy {
             .iter()
             .zip(&model.parts)
             .map(|(p, t)| {
-                let rule = match p.rule {
-                    Rule::RunToFailure => "RTF".to_string(),
-                    Rule::Age(x) => format!("A{}", fmt_hours(x)),
-                    Rule::Block(x) => format!("B{}", fmt_hours(x)),
-                };
                 let depot = if model.depot.is_some() && p.stock.depot() == 0 {
                     " + depot 0"
                 } else {
                     ""
                 };
-                format!("{} {} S{}{depot}", t.name, rule, p.stock)
+                format!("{} {} S{}{depot}", t.name, p.rule.short(), p.stock)
             })
             .collect::<Vec<_>>()
             .join("; ")

@@ -1,7 +1,7 @@
 //! Per-trial outcomes: what one future of the fleet yields under one policy.
 //!
 //! Owns: the outcome types and their cost arithmetic (totals, spend).
-//! May use: `model` (for the cost measure). No I/O.
+//! May use: `model` (for the cost measure), `dist` (its units). No I/O.
 
 use crate::dist::Hours;
 use crate::model::{CostBasis, Money};
@@ -79,6 +79,15 @@ impl PartOutcome {
     /// Spend plus the downtime penalty.
     pub fn total(&self) -> Money {
         self.spend() + self.downtime_cost
+    }
+
+    /// The cost on the given basis; `capital` is the initial stock's
+    /// capital (counted in spend only).
+    pub fn cost(&self, basis: CostBasis, capital: Money) -> Money {
+        match basis {
+            CostBasis::Spend => self.spend() + capital,
+            CostBasis::TotalWithPenalty => self.total(),
+        }
     }
 }
 

@@ -1,23 +1,183 @@
-//! Re-costing a fixed list of policies: the frontier's validation phase for
-//! policies a user names (e.g. the `policies` of a previous
-//! `wearout frontier --json`), on one process or spread over shards.
+//! Re-costing a list of policies on fresh trials: the frontier search's
+//! last step, and `wearout frontier --policies` (a list a user gives, e.g.
+//! the `policies` of a previous `wearout frontier --json`), on one process
+//! or spread over shards.
 //!
-//! Owns: reading such a list (JSON, checked against the scenario with
-//! messages naming the file and the entry), the validation trial range, and
-//! turning the re-costed summaries into a [`FrontierResult`] the same way
-//! the search's last step does (non-dominated, cheapest first, paired noise
-//! flags between neighbours).
-//! May use: `model`, `frontier` (its public frontier filter and noise flags),
-//! `summary`, `serde_json` (as a value tree; no derives). No I/O: the caller
-//! reads the file.
+//! Owns: the validation trial range (defined once, here), re-costing a
+//! list of policies on a trial range ([`recost`]), the non-dominated
+//! filter and the frontier of re-costed policies (cheapest first, paired
+//! noise flags between neighbours), and reading a list of policies (JSON,
+//! checked against the scenario with messages naming the file and the
+//! entry).
+//! May use: `model`, `run`, `summary`, `scenario` (its name suggestions),
+//! `serde_json` (as a value tree; no derives). No I/O: the caller reads the
+//! file.
 
 use std::ops::Range;
 
 use serde_json::Value;
 
-use crate::frontier::{Costed, FrontierResult, SearchStats, VALIDATION_OFFSET, frontier_points};
 use crate::model::{CostMeasure, Model, PartPolicy, Policy, Rule, Stock};
-use crate::summary::Summary;
+use crate::run::Progress;
+use crate::summary::{Chance, MeanSe, Summary};
+
+/// Validation trials start here, so they never overlap the search trials.
+pub const VALIDATION_OFFSET: u64 = 1 << 40;
+
+/// The validation trials of a run with `validate_trials` trials:
+/// `VALIDATION_OFFSET ..`, disjoint from the search trials `0 ..`.
+pub fn validation_range(validate_trials: u64) -> Range<u64> {
+    VALIDATION_OFFSET..VALIDATION_OFFSET.saturating_add(validate_trials)
+}
+
+/// A policy with its figures on one set of trials.
+#[derive(Debug, Clone)]
+pub struct Costed {
+    pub policy: Policy,
+    /// The cost measure and its standard error.
+    pub cost: MeanSe,
+    pub chance: Chance,
+    pub summary: Summary,
+}
+
+/// Whether a frontier policy's difference from the previous (cheaper) one
+/// is inside the noise, by a paired comparison on the same trials.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct NoiseFlags {
+    /// The chance difference is within two paired standard errors.
+    pub chance_within_noise: bool,
+    /// The cost difference is within two paired standard errors.
+    pub cost_within_noise: bool,
+    pub chance_diff: MeanSe,
+    pub cost_diff: MeanSe,
+}
+
+impl NoiseFlags {
+    /// The comparison in words, for tables: `same within noise`, `chance
+    /// same within noise`, `cost same within noise` or `differs`.
+    pub fn words(&self) -> &'static str {
+        match (self.chance_within_noise, self.cost_within_noise) {
+            (true, true) => "same within noise",
+            (true, false) => "chance same within noise",
+            (false, true) => "cost same within noise",
+            (false, false) => "differs",
+        }
+    }
+}
+
+/// One row of the reported frontier.
+#[derive(Debug, Clone)]
+pub struct FrontierPoint {
+    pub costed: Costed,
+    /// Against the previous row (None for the cheapest).
+    pub noise: Option<NoiseFlags>,
+}
+
+impl Costed {
+    /// A policy's summary with its cost measure and chance.
+    pub fn of(summary: Summary, measure: CostMeasure) -> Self {
+        Costed {
+            policy: summary.policy.clone(),
+            cost: summary.cost_measure(measure),
+            chance: summary.chance(),
+            summary,
+        }
+    }
+}
+
+/// Re-cost `policies` on the trials `range`, in their order, each folded
+/// through the same accumulator a single run uses; `None` if the observer
+/// cancelled the run. The frontier search's last step and
+/// `wearout frontier --policies` both come here.
+pub fn recost(
+    model: &Model,
+    policies: &[Policy],
+    range: Range<u64>,
+    target: f64,
+    measure: CostMeasure,
+    progress: &dyn Progress,
+) -> Option<Vec<Costed>> {
+    policies
+        .iter()
+        .map(|p| {
+            crate::run::evaluate(model, p, range.clone(), target, progress)
+                .map(|s| Costed::of(s, measure))
+        })
+        .collect()
+}
+
+/// Non-dominated filter on (cost: lower better, chance: higher better);
+/// returns indices sorted by cost, ties broken by higher chance.
+pub fn non_dominated(points: &[(f64, f64)]) -> Vec<usize> {
+    let mut idx: Vec<usize> = (0..points.len()).collect();
+    idx.sort_by(|&a, &b| {
+        points[a]
+            .0
+            .total_cmp(&points[b].0)
+            .then(points[b].1.total_cmp(&points[a].1))
+    });
+    let mut out = Vec::new();
+    let mut best = f64::NEG_INFINITY;
+    for i in idx {
+        if points[i].1 > best {
+            best = points[i].1;
+            out.push(i);
+        }
+    }
+    out
+}
+
+/// The non-dominated policies among `recosted`, cheapest first, each with
+/// its paired noise flags against the one before it; named `F1`, `F2`, ...
+/// when `rename` (a search's frontier), else keeping their names (a list
+/// the user gave).
+pub fn frontier_points(
+    recosted: &[Costed],
+    measure: CostMeasure,
+    rename: bool,
+) -> Vec<FrontierPoint> {
+    let pts: Vec<(f64, f64)> = recosted
+        .iter()
+        .map(|c| (c.cost.mean, c.chance.value))
+        .collect();
+    let front = non_dominated(&pts);
+    let mut points: Vec<FrontierPoint> = Vec::with_capacity(front.len());
+    for (k, &i) in front.iter().enumerate() {
+        let mut costed = recosted[i].clone();
+        if rename {
+            costed.policy.name = format!("F{}", k + 1);
+            costed.summary.policy.name = costed.policy.name.clone();
+        }
+        let noise = points.last().map(|prev: &FrontierPoint| {
+            paired_noise(&prev.costed.summary, &costed.summary, measure)
+        });
+        points.push(FrontierPoint { costed, noise });
+    }
+    points
+}
+
+/// Paired noise flags between two policies on the same trials.
+pub fn paired_noise(a: &Summary, b: &Summary, measure: CostMeasure) -> NoiseFlags {
+    let n = a.trials().min(b.trials()) as usize;
+    let mut dc = crate::summary::Moments::default();
+    let mut dk = crate::summary::Moments::default();
+    let ca = a.trial_costs(measure.basis);
+    let cb = b.trial_costs(measure.basis);
+    for t in 0..n {
+        let ma = f64::from(u8::from(a.acc.trial_availability[t] >= a.target));
+        let mb = f64::from(u8::from(b.acc.trial_availability[t] >= b.target));
+        dk.push(mb - ma);
+        dc.push(cb[t] - ca[t]);
+    }
+    let chance_diff = MeanSe::from(&dk);
+    let cost_diff = MeanSe::from(&dc);
+    NoiseFlags {
+        chance_within_noise: chance_diff.mean.abs() <= 2.0 * chance_diff.se,
+        cost_within_noise: cost_diff.mean.abs() <= 2.0 * cost_diff.se,
+        chance_diff,
+        cost_diff,
+    }
+}
 
 /// The most policies one list may hold.
 pub const MAX_POLICIES: usize = 10_000;
@@ -32,11 +192,6 @@ pub struct PoliciesError {
     /// Where in the JSON, e.g. `policies[2].rules.engine.interval`.
     pub path: String,
     pub message: String,
-}
-
-/// The validation trials of a frontier run with `validate_trials` trials.
-pub fn validation_range(validate_trials: u64) -> Range<u64> {
-    VALIDATION_OFFSET..VALIDATION_OFFSET.saturating_add(validate_trials)
 }
 
 /// The cost measure of the frontier for `model` (the search table's, else
@@ -132,9 +287,7 @@ pub fn parse_policies(model: &Model, file: &str, text: &str) -> Result<Vec<Polic
             })?;
             for k in t.keys() {
                 if !names.contains(&k.as_str()) {
-                    let hint = crate::scenario::suggest(k, names.iter().copied())
-                        .map(|c| format!(" (did you mean `{c}`?)"))
-                        .unwrap_or_default();
+                    let hint = crate::scenario::did_you_mean(k, names.iter().copied());
                     return Err(err(
                         format!("{at}.{key}.{k}"),
                         format!(
@@ -227,46 +380,6 @@ fn read_rule(v: &Value) -> Result<Rule, (String, String)> {
             ".rule".to_string(),
             format!("unknown rule `{other}`; expected run_to_failure, age or block"),
         )),
-    }
-}
-
-/// The frontier of re-costed policies, as the search's last step builds it:
-/// cost measure and chance of each summary, the non-dominated ones kept
-/// cheapest first, each with its paired noise flags against the row above.
-/// Names are kept as given. `seconds` is the time the re-costing took.
-pub fn frontier_of(
-    model: &Model,
-    summaries: Vec<Summary>,
-    validate_trials: u64,
-    target: f64,
-    seconds: f64,
-) -> FrontierResult {
-    let measure = measure(model);
-    let recosted: Vec<Costed> = summaries
-        .into_iter()
-        .map(|s| Costed {
-            policy: s.policy.clone(),
-            cost: s.cost_measure(measure),
-            chance: s.chance(),
-            summary: s,
-        })
-        .collect();
-    let points = frontier_points(&recosted, measure, false);
-    let stats = SearchStats {
-        recosted: recosted.len(),
-        seconds_validation: seconds,
-        ..SearchStats::default()
-    };
-    FrontierResult {
-        points,
-        searched: Vec::new(),
-        space_size: model.search.as_ref().map_or(0, |s| s.size()),
-        search_trials: 0,
-        validate_trials,
-        cost: measure,
-        target,
-        stats,
-        search_frontier: Vec::new(),
     }
 }
 

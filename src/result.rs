@@ -1,8 +1,10 @@
 //! Machine-readable result shapes (the `--json` output and `result.json`).
 //!
-//! Owns: the serialisable form of an evaluation, built from a [`Summary`];
-//! domain types stay free of serde, this layer converts.
-//! May use: `summary`, `averages`, `model`, `serde`.
+//! Owns: the serialisable form of an evaluation and of a frontier, built
+//! from a [`Summary`] and a `FrontierResult`; domain types stay free of
+//! serde, this layer converts (the small value types of `summary` and
+//! `averages` it embeds as they are derive it themselves).
+//! May use: `summary`, `averages`, `model`, `frontier`, `recost`, `serde`.
 
 use serde::Serialize;
 
@@ -532,7 +534,7 @@ impl FrontierJson {
             space_size: r.space_size as f64,
             search_trials: r.search_trials,
             validate_trials: r.validate_trials,
-            validate_first_trial: crate::frontier::VALIDATION_OFFSET,
+            validate_first_trial: crate::recost::VALIDATION_OFFSET,
             target: r.target,
             seed: model.seed,
             parameter_uncertainty: model.parameter_uncertainty,

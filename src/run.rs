@@ -2,7 +2,7 @@
 //!
 //! Owns: how trial indices are split over threads and how their outcomes are
 //! folded, so that the thread count and block size never change a result.
-//! May use: `sim`, `summary`, `model`, `rayon`. Reports progress through the
+//! May use: `sim`, `outcome`, `summary`, `model`, `rayon`. Reports progress through the
 //! [`Progress`] observer; never prints.
 
 use std::ops::Range;

@@ -4,7 +4,7 @@
 //! the per-trial bookkeeping of down time, counts and costs, following the
 //! rules and conventions of the reference model (see
 //! docs/scenario-format.md, "How the simulation reads these fields").
-//! May use: `model`, `dist`, `stream`, `outcome`, `uncertainty`. Does no
+//! May use: `model`, `dist`, `stream`, `outcome`. Does no
 //! I/O, cannot fail, and takes all its randomness from the trial's streams.
 //!
 //! With [`Model::parameter_uncertainty`] on, each trial first draws the life
@@ -209,8 +209,6 @@ struct Pos {
     /// Reading at which it reaches its hard life limit (infinite: none).
     limit_op: Hours,
     lives: Stream,
-    /// Lives drawn for this position in this trial (the first included).
-    drawn: u32,
 }
 
 #[derive(Debug, Clone)]
@@ -297,8 +295,6 @@ struct Supply {
     /// Lead times drawn ahead from `leads`, in order, and the next to use.
     lead_buf: [Hours; LEAD_BATCH],
     lead_next: usize,
-    /// Orders placed in this trial.
-    orders: u64,
 }
 
 impl Default for Supply {
@@ -308,7 +304,6 @@ impl Default for Supply {
             leads: TrialSeed::new(0, 0).stream(StreamKey::LeadTimes { part: 0 }),
             lead_buf: [0.0; LEAD_BATCH],
             lead_next: LEAD_BATCH,
-            orders: 0,
         }
     }
 }
@@ -371,33 +366,32 @@ pub struct Workspace {
     lateral: Vec<Stream>,
     /// Moments units go down and come up (when counting units up).
     changes: Vec<Change>,
-    /// Part types of the last trial (its first stores carry their purchases).
-    supply_parts: usize,
     /// The trial's drawn lives per part type (parameter uncertainty).
     trial_lives: Vec<Life>,
 }
 
-/// How many random draws the last trial run on a [`Workspace`] took: lives
-/// per position (in unit, then position order) and lead times per part type.
-/// For measuring the engine against the bare cost of its random numbers
-/// ([`Simulator::draw_only`]).
+/// What the last trial run on a [`Workspace`] drew: the words taken from
+/// each position's lives stream (in unit, then position order) and the
+/// lead times of each part type's orders. For the engine bench alone, which
+/// times these draws without the engine ([`Simulator::draw_only`]); read
+/// from the streams' positions and the trial's order counts after the run,
+/// so the event loop keeps no counter for it. Not part of the library's
+/// interface.
+#[doc(hidden)]
 #[derive(Debug, Clone, Default, PartialEq, Eq)]
 pub struct DrawCounts {
-    pub lives: Vec<u32>,
+    pub life_words: Vec<u32>,
     pub leads: Vec<u32>,
 }
 
 impl Workspace {
-    /// The draws of the last trial run on this workspace.
-    pub fn draw_counts(&self) -> DrawCounts {
+    /// The draws of the last trial run on this workspace, whose outcome is
+    /// `outcome`. For the engine bench alone.
+    #[doc(hidden)]
+    pub fn draw_counts(&self, outcome: &TrialOutcome) -> DrawCounts {
         DrawCounts {
-            lives: self.pos.iter().map(|p| p.drawn).collect(),
-            leads: self
-                .stores
-                .iter()
-                .take(self.supply_parts)
-                .map(|s| s.supply.orders as u32)
-                .collect(),
+            life_words: self.pos.iter().map(|p| p.lives.position() as u32).collect(),
+            leads: outcome.parts.iter().map(|p| p.orders).collect(),
         }
     }
 }
@@ -578,16 +572,20 @@ impl<'m> Simulator<'m> {
 
     /// Draw the random numbers trial `trial` uses, and nothing else: the
     /// trial's lives per part type, every position's initial age, its first
-    /// remaining life and its `counts.lives` - 1 later lives, and each part
-    /// type's `counts.leads` lead times, from the same streams as
-    /// [`Simulator::run`]. Returns their sum, so that the work is not
-    /// optimised away. `counts` comes from [`Workspace::draw_counts`] after
-    /// running the same trial.
-    pub fn draw_only(&self, trial: u64, counts: &DrawCounts, lives: &mut Vec<Life>) -> f64 {
+    /// remaining life and later lives until its stream has given
+    /// `counts.life_words` words, and each part type's `counts.leads` lead
+    /// times, from the same streams as [`Simulator::run`]. Returns their
+    /// sum, so that the work is not optimised away, and the number of
+    /// lives and lead times drawn. `counts` comes from
+    /// [`Workspace::draw_counts`] after running the same trial. For the
+    /// engine bench alone.
+    #[doc(hidden)]
+    pub fn draw_only(&self, trial: u64, counts: &DrawCounts, lives: &mut Vec<Life>) -> (f64, u64) {
         let model = self.model;
         let seed = TrialSeed::new(model.seed, trial);
         self.trial_lives(&seed, lives);
         let mut sum = 0.0;
+        let mut draws = 0;
         let mut ages = seed.stream(StreamKey::InitialAges);
         let mut idx = 0;
         for (u, unit) in model.units.iter().enumerate() {
@@ -595,9 +593,9 @@ impl<'m> Simulator<'m> {
             for (j, &part) in unit.parts.iter().enumerate() {
                 let age =
                     draw_initial_age(&group.initial_age[part], unit.index_in_group, &mut ages);
-                let n = counts.lives.get(idx).copied().unwrap_or(0);
+                let words = u64::from(counts.life_words.get(idx).copied().unwrap_or(0));
                 idx += 1;
-                if n == 0 {
+                if words == 0 {
                     continue;
                 }
                 let mut stream = seed.stream(StreamKey::Lives {
@@ -605,18 +603,22 @@ impl<'m> Simulator<'m> {
                     position: j as u32,
                 });
                 sum += lives[part].sample_residual(age, &mut stream);
-                for _ in 1..n {
+                draws += 1;
+                while stream.position() < words {
                     sum += lives[part].sample_residual(0.0, &mut stream);
+                    draws += 1;
                 }
             }
         }
         for (p, part) in model.parts.iter().enumerate() {
             let mut stream = seed.stream(StreamKey::LeadTimes { part: p as u32 });
-            for _ in 0..counts.leads.get(p).copied().unwrap_or(0) {
+            let n = counts.leads.get(p).copied().unwrap_or(0);
+            for _ in 0..n {
                 sum += part.lead_time.sample(&mut stream);
             }
+            draws += u64::from(n);
         }
-        sum
+        (sum, draws)
     }
 
     /// Like [`Simulator::run`], asserting the model's invariants after every
@@ -715,9 +717,7 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         for (p, s) in ws.stores.iter_mut().take(n_parts).enumerate() {
             s.supply.leads = seed.stream(StreamKey::LeadTimes { part: p as u32 });
             s.supply.lead_next = LEAD_BATCH;
-            s.supply.orders = 0;
         }
-        ws.supply_parts = n_parts;
         ws.shops.clear();
         ws.transport.clear();
         ws.lateral.clear();
@@ -772,7 +772,6 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
                     due_op,
                     limit_op,
                     lives: lives_stream,
-                    drawn: active as u32,
                 });
                 ws.key_at.push(reading_key(fail_op, due_op.min(limit_op)));
                 ws.done_at.push(f64::INFINITY);
@@ -1023,7 +1022,6 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
     #[inline(always)]
     fn lead_time(&mut self, part: usize) -> Hours {
         let s = &mut self.ws.stores[part].supply;
-        s.orders += 1;
         if s.lead_next == LEAD_BATCH {
             // Independent draws overlap when made together; the k-th order
             // still gets the k-th draw of the stream.
@@ -1614,7 +1612,6 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         let part = self.ws.pos[idx].part;
         let op = self.ws.units[u].op;
         let life = self.lives[part].sample_residual(0.0, &mut self.ws.pos[idx].lives);
-        self.ws.pos[idx].drawn += 1;
         let rule: Rule = self.sim.policy[part].rule;
         let limit = self.sim.model.parts[part].hard_limit;
         let p = &mut self.ws.pos[idx];
@@ -1792,6 +1789,159 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         for (i, s) in self.out.sites.iter_mut().enumerate() {
             s.units_up = std::mem::take(&mut sites[i]);
             s.ready_hours = site_ready.get(i).copied().unwrap_or(0.0);
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    //! The event loop's three small structures against plain searches over
+    //! the same values (common practice: a priority structure is checked
+    //! against a linear scan of what it holds).
+
+    use super::*;
+    use rand::Rng;
+
+    /// A reproducible source of test values.
+    fn stream(k: u32) -> Stream {
+        TrialSeed::new(2026, 12).stream(StreamKey::Parameters { part: k })
+    }
+
+    /// A time from a small set, so that exact ties are common, or infinity.
+    fn time(rng: &mut Stream) -> Hours {
+        match rng.next_u64() % 8 {
+            0 => f64::INFINITY,
+            1 => 0.0,
+            k => (k * 250) as f64 + 0.5 * (rng.next_u64() % 2) as f64,
+        }
+    }
+
+    /// The earliest of `events` (time, class) by plain search: the lowest
+    /// time, then class, then unit.
+    fn earliest(events: &[(Hours, u64)]) -> (Hours, u64, usize) {
+        let mut best = (f64::INFINITY, CLASS_DUE, 0);
+        let mut found = false;
+        for (u, &(t, c)) in events.iter().enumerate() {
+            let better = t < best.0 || (t == best.0 && (c < best.1 || (c == best.1 && !found)));
+            if better {
+                best = (t, c, u);
+                found = true;
+            }
+        }
+        best
+    }
+
+    #[test]
+    fn the_tournament_always_holds_the_earliest_unit_event() {
+        for units in [1usize, 2, 3, 5, 8, 13, 64, 100] {
+            let mut rng = stream(units as u32);
+            let mut tourney = Tourney::default();
+            tourney.reset(units);
+            let mut events = vec![(f64::INFINITY, CLASS_DUE); units];
+            assert_eq!(tourney.top(), earliest(&events), "{units} units, fresh");
+            for step in 0..2000 {
+                let u = (rng.next_u64() % units as u64) as usize;
+                let class = [
+                    CLASS_COMPLETION,
+                    CLASS_DEPOT,
+                    CLASS_LATERAL,
+                    CLASS_SITE,
+                    CLASS_FAILURE,
+                    CLASS_DUE,
+                ][(rng.next_u64() % 6) as usize];
+                let t = time(&mut rng);
+                tourney.set(u, t, class);
+                events[u] = (t, class);
+                let (t_top, c_top, u_top) = tourney.top();
+                let (t_want, c_want, u_want) = earliest(&events);
+                assert_eq!(
+                    (t_top.to_bits(), c_top, u_top),
+                    (t_want.to_bits(), c_want, u_want),
+                    "{units} units, step {step}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn tournament_keys_order_by_time_then_class_then_unit() {
+        let order = [
+            tourney_key(0.0, CLASS_DUE, 9),
+            tourney_key(f64::MIN_POSITIVE, CLASS_COMPLETION, 0),
+            tourney_key(1.0, CLASS_COMPLETION, 5),
+            tourney_key(1.0, CLASS_FAILURE, 0),
+            tourney_key(1.0, CLASS_FAILURE, 1),
+            tourney_key(1.0, CLASS_DUE, 0),
+            tourney_key(1.0 + f64::EPSILON, CLASS_COMPLETION, 0),
+            tourney_key(1e300, CLASS_DUE, 3),
+            tourney_key(f64::INFINITY, CLASS_COMPLETION, 0),
+        ];
+        for w in order.windows(2) {
+            assert!(w[0] < w[1], "{:x} !< {:x}", w[0], w[1]);
+        }
+    }
+
+    #[test]
+    fn the_reading_key_takes_the_earlier_reading_and_a_failure_first() {
+        let readings = [0.0, -0.0, 1.0, 1.5, 2.0, 1e300, f64::INFINITY];
+        for &fail in &readings {
+            for &due in &readings {
+                let k = reading_key(fail, due);
+                let (reading, is_due) = (f64::from_bits(k >> 1), k & 1 == 1);
+                // A failure wins a tie; a negative zero reads as zero.
+                let (want, want_due) = if due < fail {
+                    (due, true)
+                } else {
+                    (fail, false)
+                };
+                assert_eq!(reading, want, "fail {fail}, due {due}");
+                assert_eq!(is_due, want_due, "fail {fail}, due {due}");
+                assert!(reading.is_sign_positive());
+            }
+        }
+        // Across positions, the least key is the earliest reading, then a
+        // failure before a due, whatever the order of the positions.
+        let mut rng = stream(99);
+        for _ in 0..500 {
+            let pos: Vec<(Hours, Hours)> =
+                (0..4).map(|_| (time(&mut rng), time(&mut rng))).collect();
+            let least = pos.iter().map(|&(f, d)| reading_key(f, d)).min().unwrap();
+            let first = pos
+                .iter()
+                .flat_map(|&(f, d)| [(f, 0u8), (d, 1u8)])
+                .min_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)))
+                .unwrap();
+            assert_eq!(f64::from_bits(least >> 1), first.0, "{pos:?}");
+            if first.0.is_finite() {
+                assert_eq!(least & 1, u64::from(first.1), "{pos:?}");
+            }
+        }
+    }
+
+    #[test]
+    fn the_awaited_arrivals_book_knows_the_earliest() {
+        for parts in [1usize, 2, 3, 7] {
+            let mut rng = stream(100 + parts as u32);
+            let mut book = Arrivals::default();
+            book.reset(parts);
+            let mut at = vec![f64::INFINITY; parts];
+            for step in 0..3000 {
+                let p = (rng.next_u64() % parts as u64) as usize;
+                let t = time(&mut rng);
+                book.set(p, t);
+                at[p] = t;
+                // Plain search: the least time, the lower part on a tie.
+                let mut want = (f64::INFINITY, 0);
+                for (q, &x) in at.iter().enumerate() {
+                    if x < want.0 {
+                        want = (x, q);
+                    }
+                }
+                assert_eq!(book.first.0, want.0, "{parts} parts, step {step}");
+                if want.0.is_finite() {
+                    assert_eq!(book.first.1, want.1, "{parts} parts, step {step}");
+                }
+            }
         }
     }
 }

@@ -4,7 +4,7 @@
 //! of random numbers. A stream is a pure function of those three values, so
 //! every policy sees the same futures, and a trial's outcome does not depend
 //! on thread count, batch size or the process that ran it.
-//! May use: nothing but `rand_core`'s traits.
+//! May use: nothing but `rand`'s traits.
 //!
 //! The generator is counter-based: the `k`-th 64-bit word of a stream is the
 //! SplitMix64 finaliser (Steele, Lea & Flood, "Fast splittable pseudorandom

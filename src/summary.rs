@@ -5,7 +5,8 @@
 //!
 //! Owns: the statistics of a set of trial outcomes, always folded in trial
 //! order so a summary is bit-for-bit the same however the trials were run.
-//! May use: `outcome`, `model`. No I/O.
+//! May use: `outcome`, `model`, `serde` (a derive on the small value types
+//! that `result` embeds). No I/O.
 
 use crate::model::{CostBasis, CostMeasure, CostStatistic, Measure, Model, Money, Policy};
 use crate::outcome::{SiteOutcome, TrialOutcome};

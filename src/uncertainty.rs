@@ -317,7 +317,15 @@ impl LifeUncertainty {
     ) -> Result<Self, UncertaintyError> {
         let layout = Layout::of(&point, &covariance.names, location_cap)?;
         let n = layout.len();
-        let chol = cholesky(&covariance.matrix, n).ok_or(UncertaintyError::NotPositiveDefinite)?;
+        if !symmetric(&covariance.matrix, n) {
+            return Err(UncertaintyError::NotPositiveDefinite);
+        }
+        // The covariance holds its Cholesky factor (built, and checked
+        // positive definite, with it).
+        let mut chol = [[0.0; 3]; 3];
+        for (row, from) in chol.iter_mut().zip(covariance.factor()).take(n) {
+            row[..n].copy_from_slice(&from[..n]);
+        }
         let mut center = [0.0; 3];
         center[..n].copy_from_slice(&covariance.center[..n]);
         Ok(LifeUncertainty {
@@ -412,31 +420,15 @@ impl LifeUncertainty {
     }
 }
 
-/// Cholesky factor of the leading `n x n` block (n <= 3); `None` unless
-/// symmetric positive definite.
-fn cholesky(a: &[Vec<f64>], n: usize) -> Option<[[f64; 3]; 3]> {
-    if n > 3 || a.len() < n || a.iter().take(n).any(|r| r.len() < n) {
-        return None;
-    }
-    let mut l = [[0.0; 3]; 3];
-    for i in 0..n {
-        for j in 0..=i {
-            if (a[i][j] - a[j][i]).abs() > 1e-9 * (a[i][i].abs() * a[j][j].abs()).sqrt() {
-                return None;
-            }
-            let (li, lj) = (l[i], l[j]);
-            let s = a[i][j] - li.iter().zip(&lj).take(j).map(|(x, y)| x * y).sum::<f64>();
-            if i == j {
-                if !(s > 0.0 && s.is_finite()) {
-                    return None;
-                }
-                l[i][i] = s.sqrt();
-            } else {
-                l[i][j] = s / l[j][j];
-            }
-        }
-    }
-    Some(l)
+/// Whether `a` has a leading `n x n` block and it is symmetric, to
+/// rounding.
+fn symmetric(a: &[Vec<f64>], n: usize) -> bool {
+    a.len() >= n
+        && a.iter().take(n).all(|r| r.len() >= n)
+        && (0..n).all(|i| {
+            (0..i)
+                .all(|j| (a[i][j] - a[j][i]).abs() <= 1e-9 * (a[i][i].abs() * a[j][j].abs()).sqrt())
+        })
 }
 
 #[cfg(test)]
@@ -626,6 +618,17 @@ mod tests {
         let f = LifeUncertainty::fixed(Life::exponential(100.0).unwrap());
         assert!(!f.is_uncertain());
         assert_eq!(f.draw(&mut stream(5)), Life::exponential(100.0).unwrap());
+    }
+
+    #[test]
+    fn an_unsymmetric_covariance_is_refused() {
+        let c = cov(
+            vec!["mu", "ln sigma"],
+            vec![5.0, -1.0],
+            vec![vec![0.1, 0.05], vec![0.0, 0.1]],
+        );
+        let e = LifeUncertainty::new(Life::lognormal(5.0, 0.4).unwrap(), c, None).unwrap_err();
+        assert_eq!(e, UncertaintyError::NotPositiveDefinite);
     }
 
     #[test]

@@ -2,57 +2,13 @@
 //! or on the command line gives one clear message naming the file, the field
 //! path and what is allowed, and exit status 2.
 
-use std::path::PathBuf;
-use std::process::Command;
+mod common;
 
-fn scenario(name: &str) -> String {
-    let path = format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"));
-    std::fs::read_to_string(path).expect("shipped scenario")
-}
+use std::process::Stdio;
 
-fn write_temp(tag: &str, text: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("wearout-cli-errors-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).expect("temp dir");
-    let p = dir.join(format!("{tag}.toml"));
-    std::fs::write(&p, text).expect("write temp scenario");
-    p
-}
-
-/// Run the binary; return (exit code, stderr).
-fn wearout(args: &[&str]) -> (i32, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_wearout"))
-        .args(args)
-        .env_remove("RUST_BACKTRACE")
-        .output()
-        .expect("run wearout");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stderr).to_string(),
-    )
-}
-
-/// Check one broken scenario: exit 2, one message with all `needles`.
-fn refuses(tag: &str, text: &str, needles: &[&str]) {
-    let p = write_temp(tag, text);
-    let (code, err) = wearout(&["check", p.to_str().unwrap()]);
-    assert_eq!(code, 2, "{tag}: exit code {code}, stderr: {err}");
-    assert!(
-        !err.contains("panicked") && !err.contains("backtrace"),
-        "{tag}: {err}"
-    );
-    assert!(
-        err.contains(&format!("{tag}.toml")),
-        "{tag}: no file name in {err}"
-    );
-    for n in needles {
-        assert!(err.contains(n), "{tag}: `{n}` not in: {err}");
-    }
-    assert_eq!(
-        err.trim().lines().count(),
-        1,
-        "{tag}: one message, got {err}"
-    );
-}
+// Check one broken scenario: exit 2, one message with all the needles.
+use common::check_refuses as refuses;
+use common::{Ran, run_wearout, scenario_text as scenario, temp_dir, temp_scenario};
 
 fn b0_with(from: &str, to: &str) -> String {
     let s = scenario("b0");
@@ -62,8 +18,10 @@ fn b0_with(from: &str, to: &str) -> String {
 
 #[test]
 fn missing_file() {
-    let (code, err) = wearout(&["check", "/nonexistent/fleet.toml"]);
-    assert_eq!(code, 2);
+    let Ran {
+        code, stderr: err, ..
+    } = run_wearout(&["check", "/nonexistent/fleet.toml"]);
+    assert_eq!(code, Some(2));
     assert!(
         err.contains("/nonexistent/fleet.toml") && err.contains("cannot read"),
         "{err}"
@@ -162,17 +120,21 @@ fn target_outside_unit_interval() {
         &b0_with("target_availability = 0.97", "target_availability = 0"),
         &["scenario.target_availability", "(0, 1]"],
     );
-    let b0 = format!("{}/scenarios/b0.toml", env!("CARGO_MANIFEST_DIR"));
-    let (code, err) = wearout(&["evaluate", &b0, "--target=-0.5", "--trials", "10"]);
-    assert_eq!(code, 2);
+    let b0 = common::scenario_path("b0");
+    let Ran {
+        code, stderr: err, ..
+    } = run_wearout(&["evaluate", &b0, "--target=-0.5", "--trials", "10"]);
+    assert_eq!(code, Some(2));
     assert!(err.contains("--target") && err.contains("(0, 1]"), "{err}");
 }
 
 #[test]
 fn zero_trials_on_the_command_line() {
-    let b0 = format!("{}/scenarios/b0.toml", env!("CARGO_MANIFEST_DIR"));
-    let (code, err) = wearout(&["evaluate", &b0, "--trials", "0"]);
-    assert_eq!(code, 2);
+    let b0 = common::scenario_path("b0");
+    let Ran {
+        code, stderr: err, ..
+    } = run_wearout(&["evaluate", &b0, "--trials", "0"]);
+    assert_eq!(code, Some(2));
     assert!(err.contains("--trials"), "{err}");
 }
 
@@ -214,9 +176,11 @@ fn policy_names_a_missing_part_or_leaves_one_out() {
         ),
         &["policies.reference", "leaves out part type `belt`"],
     );
-    let b0 = format!("{}/scenarios/b0.toml", env!("CARGO_MANIFEST_DIR"));
-    let (code, err) = wearout(&["evaluate", &b0, "--policy", "referense", "--trials", "10"]);
-    assert_eq!(code, 2);
+    let b0 = common::scenario_path("b0");
+    let Ran {
+        code, stderr: err, ..
+    } = run_wearout(&["evaluate", &b0, "--policy", "referense", "--trials", "10"]);
+    assert_eq!(code, Some(2));
     assert!(err.contains("did you mean `reference`?"), "{err}");
 }
 
@@ -280,12 +244,13 @@ fn rule_and_interval_mismatch() {
 
 #[test]
 fn not_utf8_and_empty() {
-    let dir = std::env::temp_dir().join(format!("wearout-cli-bin-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = temp_dir("cli-bin");
     let p = dir.join("binary.toml");
     std::fs::write(&p, [0xff, 0xfe, 0x00, 0x41]).unwrap();
-    let (code, err) = wearout(&["check", p.to_str().unwrap()]);
-    assert_eq!(code, 2, "{err}");
+    let Ran {
+        code, stderr: err, ..
+    } = run_wearout(&["check", p.to_str().unwrap()]);
+    assert_eq!(code, Some(2), "{err}");
     assert!(err.contains("UTF-8"), "{err}");
     refuses("empty", "", &["missing field `scenario`"]);
 }
@@ -327,9 +292,11 @@ fn contradictory_or_empty_fields() {
 #[test]
 fn frontier_refusals() {
     // --exhaustive on a space far beyond the limit is refused at once.
-    let b1 = format!("{}/scenarios/b1.toml", env!("CARGO_MANIFEST_DIR"));
-    let (code, err) = wearout(&["frontier", &b1, "--exhaustive"]);
-    assert_eq!(code, 2, "{err}");
+    let b1 = common::scenario_path("b1");
+    let Ran {
+        code, stderr: err, ..
+    } = run_wearout(&["frontier", &b1, "--exhaustive"]);
+    assert_eq!(code, Some(2), "{err}");
     assert!(
         err.contains("117649000000 policies") && err.contains("--exhaustive"),
         "{err}"
@@ -337,8 +304,39 @@ fn frontier_refusals() {
     // A scenario without a search space says what to add.
     let text = scenario("b0");
     let cut = text.find("[search]").expect("b0 has a search table");
-    let p = write_temp("nosearch", &text[..cut]);
-    let (code, err) = wearout(&["frontier", p.to_str().unwrap()]);
-    assert_eq!(code, 2, "{err}");
+    let p = temp_scenario("nosearch", &text[..cut]);
+    let Ran {
+        code, stderr: err, ..
+    } = run_wearout(&["frontier", p.to_str().unwrap()]);
+    assert_eq!(code, Some(2), "{err}");
     assert!(err.contains("no [search] table"), "{err}");
+}
+
+/// A reader that goes away before the output comes (`wearout ... | head`)
+/// is no failure: exit status 0 and nothing on stderr (common practice of
+/// command-line tools).
+#[test]
+fn a_closed_output_pipe_is_no_failure() {
+    let fans = format!(
+        "{}/tests/data/generator_fans.csv",
+        env!("CARGO_MANIFEST_DIR")
+    );
+    let runs: [&[&str]; 3] = [
+        &["evaluate", "--trials", "300", "--json"],
+        &["evaluate", "--trials", "300"],
+        &["fit", &fans],
+    ];
+    for args in runs {
+        let mut child = common::wearout()
+            .args(args)
+            .stdout(Stdio::piped())
+            .stderr(Stdio::piped())
+            .spawn()
+            .expect("wearout starts");
+        drop(child.stdout.take());
+        let out = child.wait_with_output().expect("wearout ends");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(0), "{args:?}: {err}");
+        assert!(err.is_empty(), "{args:?}: {err}");
+    }
 }

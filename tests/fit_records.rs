@@ -9,8 +9,9 @@
 //! table 26.8); the removal log is invented and its lives are worked out
 //! by hand in the test.
 
+mod common;
+
 use std::path::{Path, PathBuf};
-use std::process::Command;
 
 use wearout::fit::{
     BoundMethod, FitOptions, Method, Obs, Observed, Sample, fit_assumed_shape, fit_part_with,
@@ -18,9 +19,7 @@ use wearout::fit::{
 };
 
 fn folder(tag: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("wearout-fit-records-{}-{tag}", std::process::id()));
-    std::fs::create_dir_all(&d).unwrap();
-    d
+    common::temp_dir(&format!("fit-records-{tag}"))
 }
 
 fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
@@ -285,16 +284,8 @@ fn fit_mle_loglik(s: &Sample, shape: f64, scale: f64) -> f64 {
 
 /// Run the binary; return (exit code, stdout, stderr).
 fn wearout(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_wearout"))
-        .args(args)
-        .env_remove("RUST_BACKTRACE")
-        .output()
-        .expect("run wearout");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).to_string(),
-        String::from_utf8_lossy(&out.stderr).to_string(),
-    )
+    let ran = common::run_wearout(args);
+    (ran.code.unwrap_or(-1), ran.stdout, ran.stderr)
 }
 
 /// Spreadsheet habits are read: a byte-order mark, semicolons with decimal

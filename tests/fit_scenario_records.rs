@@ -9,6 +9,8 @@
 //! tests/fit_records.rs; the coverage of a one-sided bound is its
 //! definition. Tolerances are binomial standard errors, fixed seeds.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 
 use wearout::dist::Life;
@@ -21,9 +23,7 @@ use wearout::stream::{StreamKey, TrialSeed};
 use wearout::uncertainty::LifeUncertainty;
 
 fn folder(tag: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("wearout-fit-scenario-{}-{tag}", std::process::id()));
-    std::fs::create_dir_all(&d).unwrap();
-    d
+    common::temp_dir(&format!("fit-scenario-{tag}"))
 }
 
 fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
@@ -80,7 +80,7 @@ fn a_removal_log_in_a_scenario_gives_the_direct_fit() {
         "s.toml",
         &scenario_text(r#"{ records = "removals.csv", meters = "meters.csv", dist = "weibull" }"#),
     );
-    let m = scenario::load(&p).unwrap();
+    let m = scenario::load(&p).unwrap().model;
     let (records, _) = read_records_or_log(&log, Some(&meters)).unwrap();
     let sample = samples_by_part(&records).remove(0);
     // By hand: failures 3050 - 1800 = 1250, 1400, 2600 - 1400 = 1200 and
@@ -141,7 +141,7 @@ fn assumed_shape_without_failures_in_a_scenario() {
         "s.toml",
         &scenario_text(r#"{ records = "pads.csv", dist = "weibull", assumed_shape = 2.0 }"#),
     );
-    let m = scenario::load(&p).unwrap();
+    let m = scenario::load(&p).unwrap().model;
     // By hand (tests/fit_records.rs): scale sqrt(13 500 000) = 3674.2346 h.
     match m.parts[0].life {
         Life::Weibull { shape, scale, .. } => {

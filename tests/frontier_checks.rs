@@ -4,16 +4,12 @@
 
 mod common;
 
-use wearout::frontier::{
-    FrontierConfig, FrontierResult, VALIDATION_OFFSET, hypervolume, non_dominated, search,
-};
-use wearout::model::{Model, Rule};
-use wearout::run::Quiet;
+use common::load;
 
-fn load(name: &str) -> Model {
-    let path = format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"));
-    wearout::scenario::load(std::path::Path::new(&path)).expect("scenario loads")
-}
+use wearout::frontier::{FrontierConfig, FrontierResult, hypervolume, search};
+use wearout::model::Rule;
+use wearout::recost::{VALIDATION_OFFSET, non_dominated};
+use wearout::run::Quiet;
 
 fn config(
     search_trials: u64,

@@ -4,18 +4,14 @@
 //! (Common practice: a planning tool refuses a run it cannot finish rather
 //! than hang or run out of memory.)
 
+mod common;
+
 use std::io::{BufRead, BufReader};
 use std::path::PathBuf;
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
 
-fn shipped(name: &str) -> String {
-    std::fs::read_to_string(format!(
-        "{}/scenarios/{name}.toml",
-        env!("CARGO_MANIFEST_DIR")
-    ))
-    .expect("shipped scenario")
-}
+use common::{Ran, run_wearout, scenario_text as shipped};
 
 fn with(base: &str, from: &str, to: &str) -> String {
     let s = shipped(base);
@@ -31,26 +27,14 @@ fn write(tag: &str, text: &str) -> PathBuf {
     p
 }
 
-/// Run the binary; return (exit code, stdout, stderr, seconds).
-fn wearout(args: &[&str]) -> (Option<i32>, String, String, f64) {
-    let t = Instant::now();
-    let out = Command::new(env!("CARGO_BIN_EXE_wearout"))
-        .args(args)
-        .env("CI", "1")
-        .env_remove("RUST_BACKTRACE")
-        .output()
-        .expect("runs");
-    (
-        out.status.code(),
-        String::from_utf8_lossy(&out.stdout).to_string(),
-        String::from_utf8_lossy(&out.stderr).to_string(),
-        t.elapsed().as_secs_f64(),
-    )
-}
-
 /// Refused at once (within `secs`), exit 2, one message with `needles`.
 fn refused_at_once(args: &[&str], secs: f64, needles: &[&str]) {
-    let (code, _, err, t) = wearout(args);
+    let Ran {
+        code,
+        stderr: err,
+        seconds: t,
+        ..
+    } = run_wearout(args);
     assert_eq!(code, Some(2), "{args:?}: {err}");
     assert!(t < secs, "{args:?}: took {t:.1} s to refuse");
     assert!(!err.contains("panicked"), "{err}");
@@ -75,7 +59,7 @@ fn a_horizon_of_1e300_hours_is_refused_at_once() {
 
 #[test]
 fn a_trillion_trials_are_refused_at_once_with_what_fits() {
-    let b1 = format!("{}/scenarios/b1.toml", env!("CARGO_MANIFEST_DIR"));
+    let b1 = common::scenario_path("b1");
     refused_at_once(
         &["evaluate", &b1, "--trials", "1000000000000"],
         5.0,
@@ -105,8 +89,12 @@ fn a_weibull_shape_of_1e_6_runs_within_bounds() {
     // With shape 1e-6 a life is 0 or astronomically long (R(t) is about
     // e^-1 over any sane range): a few renewals per position, then none.
     let p = write("shape", &with("b0", "shape = 2.5", "shape = 1e-6"));
-    let (code, out, err, t) =
-        wearout(&["evaluate", p.to_str().unwrap(), "--trials", "200", "--json"]);
+    let Ran {
+        code,
+        stdout: out,
+        stderr: err,
+        seconds: t,
+    } = run_wearout(&["evaluate", p.to_str().unwrap(), "--trials", "200", "--json"]);
     assert_eq!(code, Some(0), "{err}");
     assert!(t < 30.0, "took {t:.1} s");
     assert!(out.contains("\"availability\""), "{out}");
@@ -122,8 +110,12 @@ fn a_lead_time_far_beyond_the_horizon_runs() {
             "lead_time = { dist = \"fixed\", hours = 1e8 }",
         ),
     );
-    let (code, out, err, _) =
-        wearout(&["evaluate", p.to_str().unwrap(), "--trials", "100", "--json"]);
+    let Ran {
+        code,
+        stdout: out,
+        stderr: err,
+        ..
+    } = run_wearout(&["evaluate", p.to_str().unwrap(), "--trials", "100", "--json"]);
     assert_eq!(code, Some(0), "{err}");
     assert!(out.contains("\"orders\""), "{out}");
 }
@@ -182,8 +174,12 @@ fn a_fleet_of_a_million_units() {
     // take before it starts.
     let text = "[scenario]\nname = \"million\"\nhorizon_hours = 500\ndowntime_penalty_per_hour = 10\ntarget_availability = 0.9\n\n[parts.pump]\nlife = { dist = \"weibull\", shape = 1.5, scale = 8000 }\nprice = 100\nlabour = { planned = 10, unplanned = 20 }\nduration_hours = { planned = 2, unplanned = 4 }\nlead_time = { dist = \"fixed\", hours = 100 }\nholding = { per_spare_hour = 0.01 }\n\n[units.machine]\npositions = [\"pump\"]\n\n[[fleet]]\nunit = \"machine\"\ncount = 1000000\n\n[policies.p]\npump = { rule = \"run_to_failure\", stock = 50 }\n";
     let p = write("million", text);
-    let (code, out, err, t) =
-        wearout(&["evaluate", p.to_str().unwrap(), "--trials", "2", "--json"]);
+    let Ran {
+        code,
+        stdout: out,
+        stderr: err,
+        seconds: t,
+    } = run_wearout(&["evaluate", p.to_str().unwrap(), "--trials", "2", "--json"]);
     assert_eq!(code, Some(0), "{err}");
     assert!(out.contains("\"units\": 1000000"), "{out}");
     assert!(t < 60.0, "took {t:.1} s");
@@ -194,9 +190,8 @@ fn a_fleet_of_a_million_units() {
     // B1 with a million trucks: hours of work, announced before it starts;
     // Ctrl-C stops it within a second even in the middle of a trial.
     let big = write("b1_million", &with("b1", "count = 40", "count = 1000000"));
-    let mut child = Command::new(env!("CARGO_BIN_EXE_wearout"))
+    let mut child = common::wearout()
         .args(["evaluate", big.to_str().unwrap(), "--trials", "200"])
-        .env("CI", "1")
         .stdout(Stdio::null())
         .stderr(Stdio::piped())
         .spawn()

@@ -18,6 +18,8 @@
 //! input whose case takes longer than `WEAROUT_FUZZ_TIMEOUT` seconds
 //! (default 60; the machine is shared).
 
+mod common;
+
 use std::io::Cursor;
 use std::path::Path;
 use std::sync::atomic::{AtomicU64, Ordering};
@@ -27,9 +29,11 @@ use std::time::{Duration, Instant};
 use proptest::prelude::*;
 use proptest::test_runner::{Config, RngAlgorithm, TestCaseError, TestRng, TestRunner};
 
+use common::scenario_text as shipped;
 use wearout::model::Model;
 use wearout::run::Quiet;
-use wearout::shard::{self, Merger, RunKind, ShardHeader, ShardSpec, Source};
+use wearout::scenario::Source;
+use wearout::shard::{self, Merger, RunKind, ShardHeader, ShardSpec};
 
 // ------------------------------------------------------------ mutations
 
@@ -447,14 +451,6 @@ where
 
 fn data_dir() -> String {
     format!("{}/tests/data", env!("CARGO_MANIFEST_DIR"))
-}
-
-fn shipped(name: &str) -> String {
-    std::fs::read_to_string(format!(
-        "{}/scenarios/{name}.toml",
-        env!("CARGO_MANIFEST_DIR")
-    ))
-    .expect("shipped scenario")
 }
 
 // ------------------------------------------------------------ scenarios

@@ -8,13 +8,9 @@
 
 mod common;
 
-use wearout::model::Model;
-use wearout::summary::{Moments, Summary};
+use common::load;
 
-fn load(name: &str) -> Model {
-    let path = format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"));
-    wearout::scenario::load(std::path::Path::new(&path)).expect("benchmark scenario loads")
-}
+use wearout::summary::{Moments, Summary};
 
 fn agree(what: &str, ours: &Moments, theirs: f64, se_theirs: f64) {
     let se = (ours.se().powi(2) + se_theirs.powi(2)).sqrt();

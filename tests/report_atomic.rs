@@ -6,9 +6,12 @@
 //! default folder when no folder is given). Agreement checks with the
 //! crate's own earlier output; no outside figures are involved.
 
+mod common;
+
 use std::collections::BTreeMap;
-use std::path::{Path, PathBuf};
-use std::process::Command;
+use std::path::Path;
+
+use common::{temp_dir, wearout};
 
 use wearout::averages::plan_on_averages;
 use wearout::model::Model;
@@ -16,15 +19,11 @@ use wearout::report::{MANIFEST, Report, evaluate_report};
 use wearout::result::EvaluateJson;
 use wearout::run::{Quiet, evaluate};
 
-fn temp_dir(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("wearout-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    d
-}
-
 /// An evaluate report of the demo's first policy with `seed` and `n` trials.
 fn report(seed: u64, n: u64) -> Report {
-    let (mut model, _): (Model, _) = wearout::scenario::load_or_demo(None).expect("demo loads");
+    let mut model: Model = wearout::scenario::load_or_demo(None)
+        .expect("demo loads")
+        .model;
     model.seed = seed;
     let policy = model.policies[0].clone();
     let summary = evaluate(&model, &policy, 0..n, model.target, &Quiet).expect("runs");
@@ -120,11 +119,9 @@ fn a_new_report_removes_only_the_old_reports_files() {
 
 #[test]
 fn the_command_line_writes_where_report_says() {
-    let bin = env!("CARGO_BIN_EXE_wearout");
     let dir = temp_dir("report-cli");
-    std::fs::create_dir_all(&dir).expect("mkdir");
     // No folder given: reports/<scenario-name>/ under the working folder.
-    let out = Command::new(bin)
+    let out = wearout()
         .args(["evaluate", "--trials", "200", "--json", "--report"])
         .current_dir(&dir)
         .output()
@@ -145,7 +142,7 @@ fn the_command_line_writes_where_report_says() {
     assert!(String::from_utf8_lossy(&out.stderr).contains("index.html"));
     // A folder given.
     let there = dir.join("elsewhere");
-    let out = Command::new(bin)
+    let out = wearout()
         .args([
             "frontier",
             "--trials",
@@ -176,7 +173,7 @@ fn the_command_line_writes_where_report_says() {
     // A folder that cannot be made: a user error naming it, exit status 2.
     let blocker = dir.join("a-file");
     std::fs::write(&blocker, "x").expect("file");
-    let out = Command::new(bin)
+    let out = wearout()
         .args(["evaluate", "--trials", "50", "--report"])
         .arg(blocker.join("sub"))
         .output()

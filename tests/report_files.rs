@@ -1,5 +1,6 @@
 //! The report's files agree with each other and with the in-memory result:
-//! result.json is the `--json` shape exactly, policies.csv and frontier.csv
+//! result.json is, byte for byte, what the command prints with `--json`
+//! (the binary's own output of the same run), policies.csv and frontier.csv
 //! carry the same figures, and trials.csv (re-run trial by trial) gives back
 //! every mean, chance and percentile of the run it reports. The HTML page
 //! is self-contained and escapes what the scenario says.
@@ -11,12 +12,17 @@
 //! PERCENTILE.INC), and the chance is the share of trials meeting the
 //! target (README, "What the figures mean").
 
+mod common;
+
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 use std::sync::OnceLock;
 
-use wearout::frontier::{FrontierConfig, FrontierResult, VALIDATION_OFFSET, search};
+use common::temp_dir;
+
+use wearout::frontier::{FrontierConfig, FrontierResult, search};
 use wearout::model::Model;
+use wearout::recost::VALIDATION_OFFSET;
 use wearout::result::FrontierJson;
 use wearout::run::Quiet;
 
@@ -24,7 +30,9 @@ use wearout::run::Quiet;
 fn demo() -> &'static (Model, FrontierResult, FrontierJson) {
     static RUN: OnceLock<(Model, FrontierResult, FrontierJson)> = OnceLock::new();
     RUN.get_or_init(|| {
-        let (model, _) = wearout::scenario::load_or_demo(None).expect("demo loads");
+        let model = wearout::scenario::load_or_demo(None)
+            .expect("demo loads")
+            .model;
         let config = FrontierConfig {
             screen_trials: 200,
             ..FrontierConfig::new(200, 400, model.target)
@@ -33,12 +41,6 @@ fn demo() -> &'static (Model, FrontierResult, FrontierJson) {
         let json = FrontierJson::new(&model, &result, false);
         (model, result, json)
     })
-}
-
-fn temp_dir(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("wearout-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    d
 }
 
 /// The demo report, written once.
@@ -92,35 +94,75 @@ fn type7(xs: &mut [f64], p: f64) -> f64 {
     xs[lo] + (h - lo as f64) * (xs[hi] - xs[lo])
 }
 
+/// `result.json` is what the command prints with `--json`, byte for byte:
+/// compared with the binary's own output of the same run (a frontier's
+/// timings included), for a frontier, an evaluation (also against a run
+/// without `--report`) and a merge of shards.
 #[test]
 fn result_json_is_the_json_output() {
-    let (_, _, json) = demo();
-    let text = std::fs::read_to_string(written().join("result.json")).expect("result.json");
-    // Byte for byte what `--json` prints (pretty JSON and a newline).
-    let printed = serde_json::to_string_pretty(json).expect("serialises") + "\n";
-    assert_eq!(text, printed);
-    // And it reads back as the same tree of keys (numbers compared as
-    // text above: serde_json's default float parsing may differ in the
-    // last bit).
-    let on_disk: serde_json::Value = serde_json::from_str(&text).expect("valid JSON");
-    let in_memory = serde_json::to_value(json).expect("serialises");
-    fn keys(v: &serde_json::Value, out: &mut Vec<String>, at: &str) {
-        match v {
-            serde_json::Value::Object(m) => m.iter().for_each(|(k, x)| {
-                out.push(format!("{at}.{k}"));
-                keys(x, out, &format!("{at}.{k}"));
-            }),
-            serde_json::Value::Array(a) => a
-                .iter()
-                .enumerate()
-                .for_each(|(i, x)| keys(x, out, &format!("{at}[{i}]"))),
-            _ => {}
+    let dir = temp_dir("report-json");
+    let run = |args: &[&str], report: Option<&Path>| -> Vec<u8> {
+        let mut c = common::wearout();
+        c.args(args);
+        if let Some(d) = report {
+            c.arg("--report").arg(d);
         }
-    }
-    let (mut a, mut b) = (Vec::new(), Vec::new());
-    keys(&on_disk, &mut a, "");
-    keys(&in_memory, &mut b, "");
-    assert_eq!(a, b);
+        let out = c.output().expect("wearout runs");
+        assert!(
+            out.status.success(),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        out.stdout
+    };
+    let on_disk = |d: &Path| std::fs::read(d.join("result.json")).expect("result.json");
+
+    let front = dir.join("frontier");
+    let printed = run(
+        &[
+            "frontier",
+            "--trials",
+            "100",
+            "--validate-trials",
+            "200",
+            "--json",
+        ],
+        Some(&front),
+    );
+    assert_eq!(
+        String::from_utf8_lossy(&on_disk(&front)),
+        String::from_utf8_lossy(&printed)
+    );
+
+    let eval = dir.join("evaluate");
+    let b0 = common::scenario_path("b0");
+    let args = ["evaluate", &b0, "--trials", "300", "--json"];
+    let printed = run(&args, Some(&eval));
+    assert_eq!(on_disk(&eval), printed);
+    assert_eq!(run(&args, None), printed, "--report changes no output");
+
+    let shards: Vec<String> = (0..2)
+        .map(|k| {
+            let f = dir.join(format!("part-{k}.shard")).display().to_string();
+            let spec = format!("{k}/2");
+            run(
+                &[
+                    "evaluate", &b0, "--trials", "300", "--shard", &spec, "--out", &f,
+                ],
+                None,
+            );
+            f
+        })
+        .collect();
+    let merged = dir.join("merged");
+    let mut args = vec!["merge", "--json"];
+    args.extend(shards.iter().map(String::as_str));
+    let printed = run(&args, Some(&merged));
+    assert_eq!(on_disk(&merged), printed);
+    assert_eq!(
+        printed,
+        run(&["evaluate", &b0, "--trials", "300", "--json"], None)
+    );
 }
 
 #[test]

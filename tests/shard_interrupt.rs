@@ -3,25 +3,17 @@
 //! and reports as they were. (Common practice for command-line tools: exit
 //! status 130 = 128 + SIGINT, as shells report a process ended by Ctrl-C.)
 
-use std::path::{Path, PathBuf};
+mod common;
+
+use std::path::Path;
 use std::process::{Child, Command, Stdio};
 use std::time::{Duration, Instant};
 
-fn scenario(name: &str) -> String {
-    format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"))
-}
-
-fn temp_dir(tag: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("wearout-interrupt-{tag}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).expect("temp dir");
-    d
-}
+use common::{scenario_path as scenario, temp_dir};
 
 fn start(args: &[&str]) -> Child {
-    Command::new(env!("CARGO_BIN_EXE_wearout"))
+    common::wearout()
         .args(args)
-        .env("CI", "1")
         .stdout(Stdio::piped())
         .stderr(Stdio::piped())
         .spawn()
@@ -78,12 +70,12 @@ fn names_in(dir: &Path) -> Vec<String> {
 
 #[test]
 fn ctrl_c_during_a_shard_run_keeps_the_earlier_file() {
-    let dir = temp_dir("shard");
+    let dir = temp_dir("interrupt-shard");
     let target = dir.join("run.shard");
     // An earlier shard of the same name, from a short run.
     let b1 = scenario("b1");
     let out = target.display().to_string();
-    let st = Command::new(env!("CARGO_BIN_EXE_wearout"))
+    let st = common::wearout()
         .args(["evaluate", &b1, "--trials", "20", "--out", &out])
         .output()
         .expect("runs");
@@ -110,7 +102,7 @@ fn ctrl_c_during_a_shard_run_keeps_the_earlier_file() {
 
 #[test]
 fn sigterm_and_ctrl_c_stop_evaluate_and_frontier_promptly() {
-    let dir = temp_dir("runs");
+    let dir = temp_dir("interrupt-runs");
     let report = dir.join("report");
     std::fs::create_dir_all(&report).unwrap();
     std::fs::write(report.join("index.html"), "earlier report").unwrap();

@@ -7,20 +7,36 @@
 //! computation of the same thing: the single-process run over the same
 //! trials (`run::evaluate`), which never touches the shard code.
 
+mod common;
+
 use std::io::Cursor;
 use std::path::Path;
 
+use wearout::frontier::FrontierResult;
 use wearout::model::{Model, Policy};
+use wearout::recost::Costed;
 use wearout::result::{EvaluateJson, FrontierJson};
 use wearout::run::{Quiet, evaluate, evaluate_counting_units};
+use wearout::scenario::Source;
 use wearout::shard::{
-    self, MergeError, Merged, Merger, RunKind, ShardError, ShardHeader, ShardSpec, Source,
+    self, MergeError, Merged, Merger, RunKind, ShardError, ShardHeader, ShardSpec,
 };
+use wearout::summary::Summary;
+
+/// The frontier of re-costed summaries, as `frontier --policies` reports
+/// it.
+fn of_list(model: &Model, summaries: Vec<Summary>, trials: u64, target: f64) -> FrontierResult {
+    let measure = wearout::recost::measure(model);
+    let recosted = summaries
+        .into_iter()
+        .map(|s| Costed::of(s, measure))
+        .collect();
+    FrontierResult::of_list(model, recosted, trials, target, 0.0)
+}
 
 fn scenario(name: &str) -> (Model, Source) {
-    let path = format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"));
-    let text = std::fs::read_to_string(&path).expect("shipped scenario");
-    from_text(&path, &text)
+    let loaded = wearout::scenario::load(Path::new(&common::scenario_path(name))).expect("valid");
+    (loaded.model, loaded.source)
 }
 
 fn from_text(path: &str, text: &str) -> (Model, Source) {
@@ -180,7 +196,7 @@ fn frontier_validation_merge_equals_single_run() {
         .iter()
         .map(|p| evaluate(&model, p, range.clone(), model.target, &Quiet).expect("runs"))
         .collect();
-    let r = wearout::recost::frontier_of(&model, singles, m_trials, model.target, 0.0);
+    let r = of_list(&model, singles, m_trials, model.target);
     let want = serde_json::to_string(&FrontierJson::new(&model, &r, false)).expect("json");
     for n in [1, 5] {
         let files: Vec<Vec<u8>> = (0..n)
@@ -198,8 +214,7 @@ fn frontier_validation_merge_equals_single_run() {
             })
             .collect();
         let m = merge(&named(files)).expect("merges");
-        let r =
-            wearout::recost::frontier_of(&m.model, m.summaries, m_trials, m.header.target(), 0.0);
+        let r = of_list(&m.model, m.summaries, m_trials, m.header.target());
         let got = serde_json::to_string(&FrontierJson::new(&m.model, &r, false)).expect("json");
         assert_eq!(got, want, "{n} shards");
     }
@@ -288,7 +303,7 @@ fn refused(files: &[(String, Vec<u8>)], needles: &[&str]) -> String {
 #[test]
 fn refuses_different_scenarios() {
     let (m1, s1) = scenario("b1");
-    let path = format!("{}/scenarios/b1.toml", env!("CARGO_MANIFEST_DIR"));
+    let path = common::scenario_path("b1");
     let changed = s1.text.replacen("price = 180000", "price = 180001", 1);
     assert_ne!(changed, s1.text);
     let (m2, s2) = from_text(&path, &changed);

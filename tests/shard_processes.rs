@@ -6,25 +6,12 @@
 //! The reference is the single-process run of the same command (an
 //! independent path that never writes or reads a shard).
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::{Child, Command, Output, Stdio};
 
-fn bin() -> Command {
-    let mut c = Command::new(env!("CARGO_BIN_EXE_wearout"));
-    c.env_remove("RUST_BACKTRACE").env("CI", "1");
-    c
-}
-
-fn scenario(name: &str) -> String {
-    format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"))
-}
-
-fn temp_dir(tag: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("wearout-shards-{tag}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).expect("temp dir");
-    d
-}
+use common::{scenario_path as scenario, temp_dir, wearout as bin};
 
 fn ok(out: Output, what: &str) -> String {
     assert!(
@@ -83,7 +70,7 @@ fn parallel_processes_merge_to_the_single_run() {
     let args = ["evaluate", &b1, "--policy", "reference", "--trials", "320"];
     let single_json = ok(bin().args(args).arg("--json").output().unwrap(), "single");
     let single_text = ok(bin().args(args).output().unwrap(), "single text");
-    let dir = temp_dir("evaluate");
+    let dir = temp_dir("shards-evaluate");
     for (n, threads) in [(1, 2), (2, 1), (7, 2), (16, 1)] {
         let mut files = run_shards(&args, n, threads, &dir);
         files.reverse();
@@ -103,7 +90,7 @@ fn parallel_processes_merge_to_the_single_run() {
 #[test]
 fn frontier_validation_spread_over_processes() {
     let b0 = scenario("b0");
-    let dir = temp_dir("frontier");
+    let dir = temp_dir("shards-frontier");
     let front = ok(
         bin()
             .args([
@@ -159,7 +146,7 @@ fn refused(args: &[&str], needles: &[&str]) {
 #[test]
 fn command_line_refusals() {
     let b0 = scenario("b0");
-    let dir = temp_dir("refusals");
+    let dir = temp_dir("shards-refusals");
     let out = dir.join("x.shard").display().to_string();
     refused(
         &["evaluate", &b0, "--shard", "1/4"],
@@ -267,7 +254,7 @@ fn the_deploy_files_run_as_the_schedulers_would() {
     );
 
     // Slurm: four array tasks at once, then the merge script.
-    let dir = temp_dir("slurm");
+    let dir = temp_dir("shards-slurm");
     let shards = dir.join("shards").display().to_string();
     let script = format!("{root}/deploy/slurm/evaluate-array.sh");
     let tasks: Vec<Child> = (0..4)
@@ -307,7 +294,7 @@ fn the_deploy_files_run_as_the_schedulers_would() {
     .unwrap();
     let merge_yaml =
         std::fs::read_to_string(format!("{root}/deploy/kubernetes/merge-job.yaml")).unwrap();
-    let kdir = temp_dir("kubernetes");
+    let kdir = temp_dir("shards-kubernetes");
     let scen = kdir.join("scenario");
     let out = kdir.join("shards");
     std::fs::create_dir_all(&scen).unwrap();

@@ -12,6 +12,8 @@
 //!
 //! Tolerances are multiples of standard errors, on fixed seeds.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 
 use wearout::dist::Life;
@@ -35,10 +37,7 @@ fn six_failures() -> Vec<f64> {
 
 /// A fresh folder for one test.
 fn folder(tag: &str) -> PathBuf {
-    let dir =
-        std::env::temp_dir().join(format!("wearout-uncertainty-{}-{tag}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
+    common::temp_dir(&format!("uncertainty-{tag}"))
 }
 
 fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
@@ -103,7 +102,7 @@ fn load_with_records(dir: &Path, units: usize, horizon: f64, down: f64, policy: 
         &scenario_text(life, units, horizon, down, policy),
     );
     match scenario::load(&p) {
-        Ok(m) => m,
+        Ok(loaded) => loaded.model,
         Err(e) => panic!("{e}"),
     }
 }
@@ -171,7 +170,7 @@ fn records_reference_gives_the_direct_fit() {
             r#"{ rule = "run_to_failure", stock = 1 }"#,
         ),
     );
-    let m = scenario::load(&p).unwrap();
+    let m = scenario::load(&p).unwrap().model;
     let halves: Vec<f64> = six_failures().iter().map(|f| f / 2.0).collect();
     let seal = Sample::new("seal", halves, vec![]).unwrap();
     let best = wearout::fit::fit_part(&seal).unwrap();
@@ -189,7 +188,7 @@ fn records_reference_gives_the_direct_fit() {
             r#"{ rule = "run_to_failure", stock = 1 }"#,
         ),
     );
-    let m = scenario::load(&p).unwrap();
+    let m = scenario::load(&p).unwrap().model;
     assert_eq!(m.parts[0].life, fit.life());
     let _ = std::fs::remove_dir_all(&dir);
 }

@@ -5,18 +5,19 @@
 //! Owns: the command's options ([`FitCommand`], which the parent module
 //! places among the subcommands) and turning [`FitArgs`] into the report on
 //! a writer and the plot file(s).
-//! May use: `crate::fit`, `clap` (the options only), `serde_json`, `std::io`.
+//! May use: `wearout::fit`, `wearout::dist`, `clap` (the options only),
+//! `serde_json`, `std::io`.
 
 use std::collections::HashSet;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use crate::dist::Life;
-use crate::fit::{self, Family, Fit, FitError, FitOptions, PartFits, PartNotFitted};
+use wearout::dist::Life;
+use wearout::fit::{self, Family, Fit, FitError, FitOptions, PartFits, PartNotFitted};
 
 /// The `fit` command's options, as the command line gives them.
 #[derive(Debug, Clone, clap::Args)]
-#[command(after_long_help = crate::fit::RECORDS_FORMAT_HELP)]
+#[command(after_long_help = wearout::fit::RECORDS_FORMAT_HELP)]
 pub struct FitCommand {
     /// Records CSV (life, kind; or after, before for failures found at
     /// inspections; optional part, entry_age, count), or a removal log
@@ -59,7 +60,7 @@ impl From<FitCommand> for FitArgs {
 /// What to fit and how to report it.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub struct FitArgs {
-    /// The records CSV or removal log (format: [`crate::fit::RECORDS_FORMAT_HELP`]).
+    /// The records CSV or removal log (format: [`wearout::fit::RECORDS_FORMAT_HELP`]).
     pub records: PathBuf,
     /// Fit only this part type (exact name, else ignoring ASCII case).
     pub part: Option<String>,

@@ -1,17 +1,24 @@
 //! `wearout frontier`: search intervals and stock levels together and list
-//! the non-dominated policies.
+//! the non-dominated policies; with `--policies FILE.json`, re-cost a given
+//! list instead, in this process or as one shard of the run.
+//!
+//! Owns: the search's and the list's settings from the arguments (trial
+//! counts, `--exhaustive`, `--max-full`, the policies file).
+//! May use: the library's `frontier`, `recost`, `scenario`, `model`; the
+//! command layer's shared steps.
 
 use std::io::Write;
 use std::path::Path;
+use std::time::Instant;
 
-use super::evaluate::CAUTION;
+use wearout::frontier::{FrontierConfig, FrontierResult, search};
+use wearout::model::{Model, Policy};
+use wearout::recost;
+use wearout::shard::RunKind;
+
+use super::guard::{Run, guard};
 use super::progress::Bar;
-use super::text::{money, num, pct, table};
-use super::{RunOpts, UserError, check_target, io};
-use crate::frontier::{FrontierConfig, FrontierResult, search};
-use crate::model::{Model, Rule};
-use crate::result::{FrontierJson, cost_measure_label};
-use crate::scenario::load_or_demo;
+use super::{CliError, Finished, Prepared, RunOpts, prepare, shard, show};
 
 /// What the command line asked of a frontier run.
 pub struct FrontierArgs<'a> {
@@ -22,13 +29,15 @@ pub struct FrontierArgs<'a> {
     pub max_full: usize,
     /// Re-cost these policies instead of searching (`--policies`).
     pub policies: Option<&'a Path>,
+    /// `--report [DIR]`.
+    pub report: Option<Option<&'a Path>>,
 }
 
 /// Refuse what the search cannot do yet: stock per site and at a depot, and
 /// a ready-units target (its chance is not in the search's surrogate).
-pub(crate) fn searchable(model: &Model) -> Result<(), UserError> {
+fn searchable(model: &Model) -> Result<(), CliError> {
     if model.has_sites() || model.ready.is_some() {
-        return Err(UserError(format!(
+        return Err(CliError::user(format!(
             "scenario `{}` has {}: the frontier search does not cover {} yet; use `wearout evaluate` to cost its named policies",
             model.name,
             if model.has_sites() {
@@ -46,20 +55,28 @@ pub(crate) fn searchable(model: &Model) -> Result<(), UserError> {
     Ok(())
 }
 
-/// Load, search and return the model, result and JSON (used by reports too).
-pub fn compute(
-    args: &FrontierArgs<'_>,
-    opts: &RunOpts,
-) -> Result<(Model, FrontierResult, FrontierJson), UserError> {
-    if let Some(p) = args.policies {
-        return super::shards::compute_fixed(args, opts, p);
+/// Run `wearout frontier`.
+pub fn run(args: &FrontierArgs<'_>, opts: &RunOpts, out: &mut dyn Write) -> Result<(), CliError> {
+    match args.policies {
+        Some(file) => given_list(args, file, opts, out),
+        None => {
+            if shard::wanted(opts) {
+                return Err(CliError::user(
+                    "--shard/--out on frontier need --policies FILE.json: a search cannot be split, but re-costing a fixed list of policies (e.g. a previous --json) can",
+                ));
+            }
+            searched(args, opts, out)
+        }
     }
-    let (mut model, _shown) = load_or_demo(args.file)?;
-    opts.apply(&mut model);
-    searchable(&model)?;
-    let target = check_target(opts.target, model.target)?;
+}
+
+/// The search.
+fn searched(args: &FrontierArgs<'_>, opts: &RunOpts, out: &mut dyn Write) -> Result<(), CliError> {
+    let Prepared { loaded, target } = prepare(args.file, opts)?;
+    let model = &loaded.model;
+    searchable(model)?;
     let space = model.search.as_ref().ok_or_else(|| {
-        UserError(format!(
+        CliError::user(format!(
             "scenario `{}` has no [search] table, so there is nothing to search; add one (docs/scenario-format.md)",
             model.name
         ))
@@ -67,8 +84,8 @@ pub fn compute(
     let search_trials = args.trials.unwrap_or(space.search_trials);
     let validate_trials = args.validate_trials.unwrap_or(space.validate_trials);
     if search_trials == 0 || validate_trials == 0 {
-        return Err(UserError(
-            "--trials and --validate-trials must be at least 1".into(),
+        return Err(CliError::user(
+            "--trials and --validate-trials must be at least 1",
         ));
     }
     let config = FrontierConfig {
@@ -76,156 +93,95 @@ pub fn compute(
         max_full: args.max_full,
         ..FrontierConfig::new(search_trials, validate_trials, target)
     };
-    super::shards::guard(
-        &model,
-        &crate::estimate::frontier(&model, &config, rayon::current_num_threads()),
-    )?;
+    guard(model, Run::Search(&config))?;
     let bar = Bar::new("frontier", 0);
-    let result = search(&model, &config, &bar)?;
+    let result = search(model, &config, &bar)?;
     bar.finish();
-    let json = FrontierJson::new(&model, &result, args.exhaustive);
-    Ok((model, result, json))
+    show(
+        Finished::Frontier {
+            model,
+            result: &result,
+            exhaustive: args.exhaustive,
+        },
+        opts.json,
+        args.report,
+        out,
+    )
 }
 
-pub fn run(
+/// `--policies FILE.json`: re-cost the list on the validation trials, in
+/// this process or as one shard.
+fn given_list(
     args: &FrontierArgs<'_>,
+    file: &Path,
     opts: &RunOpts,
-    report: Option<Option<&Path>>,
     out: &mut dyn Write,
-) -> Result<(), UserError> {
-    if super::shards::wants_shard(opts) {
-        let Some(p) = args.policies else {
-            return Err(UserError(
-                "--shard/--out on frontier need --policies FILE.json: a search cannot be split, but re-costing a fixed list of policies (e.g. a previous --json) can".into(),
-            ));
-        };
-        if report.is_some() {
-            return Err(UserError(
-                "--report does not go with --shard/--out: pass --report to `wearout merge`".into(),
-            ));
-        }
-        return super::shards::frontier_shard(args, opts, p, out);
-    }
-    let (model, result, json) = compute(args, opts)?;
-    if opts.json {
-        let s = serde_json::to_string_pretty(&json).map_err(|e| UserError(e.to_string()))?;
-        writeln!(out, "{s}").map_err(io)?;
-    } else {
-        write!(out, "{}", render(&model, &result, &json)).map_err(io)?;
-    }
-    super::write_report(report, &model.name, |progress| {
-        crate::report::frontier_report(&model, &result, &json, progress)
-    })
-}
-
-/// Compact rule: `A11200`, `B6000`, `RTF`.
-fn short_rule(r: Rule) -> String {
-    match r {
-        Rule::RunToFailure => "RTF".into(),
-        Rule::Age(t) => format!("A{}", num(t, 0).replace(',', "")),
-        Rule::Block(t) => format!("B{}", num(t, 0).replace(',', "")),
-    }
-}
-
-/// The readable frontier table.
-pub fn render(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
-    let cur = if model.currency.is_empty() {
-        String::new()
-    } else {
-        format!(" {}", model.currency)
-    };
-    let mut s = String::new();
-    s.push_str(&format!(
-        "Scenario `{}`: {} units over {} h, target availability {}\n",
-        model.name,
-        model.units.len(),
-        num(model.horizon, 0),
-        pct(r.target)
-    ));
-    s.push_str(&format!(
-        "Cost measure: {}{cur} over the horizon. Chance = share of trials with availability >= {} (Wilson 95 % interval).\n\n",
-        cost_measure_label(r.cost),
-        pct(r.target)
-    ));
-    let mut header = vec![
-        "policy".to_string(),
-        "chance [95 % interval]".into(),
-        "cost ± se".into(),
-        "avail P10/P50/P90".into(),
-        "stock capital".into(),
-    ];
-    for p in &model.parts {
-        header.push(p.name.clone());
-    }
-    header.push("vs previous".into());
-    let mut rows = vec![header];
-    for pt in &r.points {
-        let c = &pt.costed;
-        let a = c.summary.availability();
-        let mut row = vec![
-            c.policy.name.clone(),
-            format!(
-                "{} [{}, {}]",
-                pct(c.chance.value),
-                pct(c.chance.lo),
-                pct(c.chance.hi)
-            ),
-            format!("{} ± {}", money(c.cost.mean), money(c.cost.se)),
-            format!(
-                "{:.1}/{:.1}/{:.1} %",
-                100.0 * a.p10,
-                100.0 * a.p50,
-                100.0 * a.p90
-            ),
-            money(c.summary.initial_stock_capital),
-        ];
-        for pp in &c.policy.parts {
-            row.push(format!("{} S{}", short_rule(pp.rule), pp.stock));
-        }
-        row.push(match pt.noise {
-            None => "-".into(),
-            Some(n) => match (n.chance_within_noise, n.cost_within_noise) {
-                (true, true) => "same within noise".into(),
-                (true, false) => "chance same within noise".into(),
-                (false, true) => "cost same within noise".into(),
-                (false, false) => "differs".into(),
-            },
-        });
-        rows.push(row);
-    }
-    s.push_str(&table(&rows));
-    s.push_str("\nRules: RTF run to failure, A<h> age replacement at h operating hours, B<h> block replacement every h unit operating hours; S<n> base-stock level.\n");
-    s.push_str("\"same within noise\": the paired difference from the row above, on the same trials, is within two standard errors; do not pay for it.\n");
-    let st = &r.stats;
-    if r.search_trials == 0 {
-        // `--policies`: a fixed list re-costed, no search.
-        s.push_str(&format!(
-            "\nRe-costed the {} given policies on {} validation trials; {} of them are non-dominated. Took {:.1} s.\n",
-            st.recosted,
-            num(r.validate_trials as f64, 0),
-            r.points.len(),
-            st.seconds_validation
+) -> Result<(), CliError> {
+    let request = shard::request(opts, args.report.is_some())?;
+    let Prepared { loaded, target } = prepare(args.file, opts)?;
+    let model = &loaded.model;
+    searchable(model)?;
+    if args.exhaustive || args.trials.is_some() {
+        return Err(CliError::user(
+            "--policies re-costs the given policies on the validation trials only; drop --exhaustive and --trials (use --validate-trials)",
         ));
-        s.push_str(&format!("\n{CAUTION}\n"));
-        return s;
     }
-    s.push_str(&format!(
-        "\nSearched {} of {} policies{} in full on {} search trials ({} single-part screening runs, {} policies scored on the surrogate, {} linear programs); re-costed {} of the {} search-frontier policies on {} fresh trials. Took {:.1} s (screening {:.1} s, search {:.1} s, validation {:.1} s).\n",
-        num(st.evaluated as f64, 0),
-        num(r.space_size as f64, 0),
-        if j.exhaustive { " (exhaustive)" } else { "" },
-        num(r.search_trials as f64, 0),
-        st.screening_runs,
-        num(st.surrogate_scored as f64, 0),
-        st.lps,
-        st.recosted,
-        r.search_frontier.len(),
-        num(r.validate_trials as f64, 0),
-        j.seconds,
-        st.seconds_screening,
-        st.seconds_search,
-        st.seconds_validation
-    ));
-    s.push_str(&format!("\n{CAUTION}\n"));
-    s
+    let text = std::fs::read_to_string(file).map_err(|e| {
+        CliError::user(format!("cannot read policies file {}: {e}", file.display()))
+    })?;
+    let policies: Vec<Policy> = recost::parse_policies(model, &file.display().to_string(), &text)?;
+    let validate = args
+        .validate_trials
+        .or(model.search.as_ref().map(|s| s.validate_trials))
+        .unwrap_or(10_000);
+    if validate == 0 {
+        return Err(CliError::user("--validate-trials must be at least 1"));
+    }
+    let range = recost::validation_range(validate);
+    if let Some(request) = request {
+        return request.write(
+            &loaded,
+            RunKind::FrontierValidation,
+            &policies,
+            range,
+            target,
+            out,
+        );
+    }
+    guard(
+        model,
+        Run::Summaries {
+            policies: &policies,
+            trials: validate,
+        },
+    )?;
+    let bar = Bar::new("validation", validate.saturating_mul(policies.len() as u64));
+    let t0 = Instant::now();
+    let recosted = recost::recost(
+        model,
+        &policies,
+        range,
+        target,
+        recost::measure(model),
+        &bar,
+    )
+    .ok_or(CliError::Interrupted)?;
+    bar.finish();
+    let result = FrontierResult::of_list(
+        model,
+        recosted,
+        validate,
+        target,
+        t0.elapsed().as_secs_f64(),
+    );
+    show(
+        Finished::Frontier {
+            model,
+            result: &result,
+            exhaustive: false,
+        },
+        opts.json,
+        args.report,
+        out,
+    )
 }

@@ -1,8 +1,14 @@
-//! The command line: argument parsing, progress bars, exit codes.
+//! The command line: argument parsing, the steps every command shares,
+//! exit statuses. Part of the `wearout` binary, not of the library: the
+//! library knows nothing of clap, indicatif or ctrlc.
 //!
-//! Owns: everything that knows clap or indicatif, the terminal and the exit
-//! status (0 ok, 2 a user error, 1 an internal failure). The library below
-//! never prints; this layer turns its results into text or JSON.
+//! Owns: the arguments (clap), the steps the commands share (load the
+//! scenario and apply the options to it, check the target, show a result
+//! as JSON or as the terminal's table and write its report folder), and
+//! the dispatch to each command's module: `evaluate`, `frontier`,
+//! `merge`, `fit`; `shard` writes shard files, `guard` checks a run's size
+//! before it starts, `render` holds the terminal's tables, `error` the
+//! exit statuses, `interrupt` and `progress` the signals and the bars.
 //! May use: every library module.
 
 // The argument types' doc comments are clap's help text, written for the
@@ -10,30 +16,32 @@
 // not rustdoc markup.
 #![allow(rustdoc::broken_intra_doc_links, rustdoc::invalid_html_tags)]
 
-mod check;
+mod error;
 mod evaluate;
-pub mod fit;
-pub mod frontier;
+mod fit;
+mod frontier;
+mod guard;
 mod interrupt;
+mod merge;
 mod progress;
-mod shards;
-pub mod text;
+mod render;
+mod shard;
 
 use std::io::Write;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
+use wearout::averages::plan_on_averages;
+use wearout::frontier::FrontierResult;
+use wearout::model::Model;
+use wearout::report::{Report, ReportError};
+use wearout::result::{EvaluateJson, FrontierJson};
+use wearout::run::Progress;
+use wearout::scenario::{Loaded, load_or_demo};
+use wearout::summary::Summary;
 
-/// A user-facing error: one message, exit status 2.
-#[derive(Debug)]
-pub struct UserError(pub String);
-
-impl<E: std::fmt::Display> From<E> for UserError {
-    fn from(e: E) -> Self {
-        UserError(e.to_string())
-    }
-}
+pub use error::CliError;
 
 /// wearout: choose replacement intervals and spares stock for a fleet by
 /// the chance of meeting an availability target, not by averages.
@@ -77,7 +85,7 @@ pub struct RunOpts {
 
 impl RunOpts {
     /// Apply the options that change the model.
-    pub(crate) fn apply(&self, model: &mut crate::model::Model) {
+    fn apply(&self, model: &mut Model) {
         if let Some(s) = self.seed {
             model.seed = s;
         }
@@ -130,7 +138,7 @@ pub enum Command {
         #[arg(long)]
         exhaustive: bool,
         /// At most this many policies simulated in full during the search.
-        #[arg(long = "max-full", default_value_t = crate::frontier::FrontierConfig::MAX_FULL)]
+        #[arg(long = "max-full", default_value_t = wearout::frontier::FrontierConfig::MAX_FULL)]
         max_full: usize,
         /// Skip the search: re-cost these policies (the output of a previous
         /// `frontier --json`, or an array of its policies) on the validation
@@ -166,7 +174,7 @@ pub enum Command {
     Fit(fit::FitCommand),
 }
 
-/// Run the command line; returns the process exit code.
+/// Run the command line; returns the process's exit status.
 pub fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
@@ -178,39 +186,37 @@ pub fn main() -> ExitCode {
     };
     interrupt::install();
     let mut out = std::io::stdout().lock();
-    let result = dispatch(cli, &mut out);
-    match result {
+    match dispatch(cli, &mut out) {
         Ok(()) => ExitCode::SUCCESS,
-        Err(UserError(msg)) => {
-            if msg == "broken pipe" {
-                return ExitCode::SUCCESS;
+        Err(e) => {
+            if let Some(m) = e.message() {
+                let _ = writeln!(std::io::stderr(), "{m}");
             }
-            if msg == "interrupted" {
-                let _ = writeln!(std::io::stderr(), "{}", interrupt::MESSAGE);
-                return ExitCode::from(interrupt::EXIT_INTERRUPTED);
-            }
-            let _ = writeln!(std::io::stderr(), "error: {msg}");
-            ExitCode::from(2)
+            ExitCode::from(e.exit_status())
         }
     }
 }
 
-fn set_threads(threads: Option<usize>) -> Result<(), UserError> {
+fn set_threads(threads: Option<usize>) -> Result<(), CliError> {
     if let Some(n) = threads {
         if n == 0 {
-            return Err(UserError("--threads must be at least 1".into()));
+            return Err(CliError::user("--threads must be at least 1"));
         }
         rayon::ThreadPoolBuilder::new()
             .num_threads(n)
             .build_global()
-            .map_err(|e| UserError(format!("cannot set up {n} threads: {e}")))?;
+            .map_err(|e| CliError::user(format!("cannot set up {n} threads: {e}")))?;
     }
     Ok(())
 }
 
-fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
+fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), CliError> {
     match cli.command {
-        Command::Check { file } => check::run(file.as_deref(), out),
+        Command::Check { file } => {
+            let loaded = load_or_demo(file.as_deref())?;
+            write!(out, "{}", render::check(&loaded))?;
+            Ok(())
+        }
         Command::Evaluate {
             file,
             policy,
@@ -219,15 +225,13 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
             run,
         } => {
             set_threads(run.threads)?;
-            let report = report.as_ref().map(|d| d.as_deref());
-            evaluate::run(
-                file.as_deref(),
-                policy.as_deref(),
+            let args = evaluate::EvaluateArgs {
+                file: file.as_deref(),
+                policy: policy.as_deref(),
                 trials,
-                &run,
-                report,
-                out,
-            )
+                report: report.as_ref().map(|d| d.as_deref()),
+            };
+            evaluate::run(&args, &run, out)
         }
         Command::Frontier {
             file,
@@ -240,7 +244,6 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
             run,
         } => {
             set_threads(run.threads)?;
-            let report = report.as_ref().map(|d| d.as_deref());
             let args = frontier::FrontierArgs {
                 file: file.as_deref(),
                 trials,
@@ -248,8 +251,9 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
                 exhaustive,
                 max_full,
                 policies: policies.as_deref(),
+                report: report.as_ref().map(|d| d.as_deref()),
             };
-            frontier::run(&args, &run, report, out)
+            frontier::run(&args, &run, out)
         }
         Command::Merge {
             shards,
@@ -257,63 +261,164 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), UserError> {
             scenario,
             report,
         } => {
-            let args = shards::MergeArgs {
-                shards,
+            let args = merge::MergeArgs {
+                shards: &shards,
                 json,
-                scenario,
-                report,
+                scenario: scenario.as_deref(),
+                report: report.as_ref().map(|d| d.as_deref()),
             };
-            shards::merge(&args, out)
+            merge::run(&args, out)
         }
         Command::Fit(command) => {
             let args = fit::FitArgs::from(command);
-            fit::run(&args, out).map_err(|e| match e {
-                crate::fit::FitError::Output { message, .. } if message.contains("Broken pipe") => {
-                    UserError("broken pipe".into())
+            // The fit's errors keep no I/O error kind, so the writer
+            // itself notes a closed pipe.
+            let mut watched = Watched {
+                inner: out,
+                closed: false,
+            };
+            fit::run(&args, &mut watched).map_err(|e| {
+                if watched.closed {
+                    CliError::BrokenPipe
+                } else {
+                    e.into()
                 }
-                e => UserError(e.to_string()),
             })
         }
     }
 }
 
+/// A writer that notes whether its reader went away.
+struct Watched<'a> {
+    inner: &'a mut dyn Write,
+    closed: bool,
+}
+
+impl Watched<'_> {
+    fn note<T>(&mut self, r: std::io::Result<T>) -> std::io::Result<T> {
+        if let Err(e) = &r
+            && e.kind() == std::io::ErrorKind::BrokenPipe
+        {
+            self.closed = true;
+        }
+        r
+    }
+}
+
+impl Write for Watched<'_> {
+    fn write(&mut self, buf: &[u8]) -> std::io::Result<usize> {
+        let r = self.inner.write(buf);
+        self.note(r)
+    }
+
+    fn flush(&mut self) -> std::io::Result<()> {
+        let r = self.inner.flush();
+        self.note(r)
+    }
+}
+
+/// A scenario loaded with the command line's options applied, and the
+/// availability target to run with.
+struct Prepared {
+    loaded: Loaded,
+    target: f64,
+}
+
+/// Load the scenario (the embedded demo without `file`), apply the run
+/// options and check `--target`.
+fn prepare(file: Option<&Path>, opts: &RunOpts) -> Result<Prepared, CliError> {
+    let mut loaded = load_or_demo(file)?;
+    opts.apply(&mut loaded.model);
+    let target = match opts.target {
+        None => loaded.model.target,
+        Some(x) if x > 0.0 && x <= 1.0 => x,
+        Some(x) => {
+            return Err(CliError::user(format!(
+                "--target must be in (0, 1], e.g. 0.92 (got {x})"
+            )));
+        }
+    };
+    Ok(Prepared { loaded, target })
+}
+
+/// A finished result to show.
+enum Finished<'a> {
+    /// One policy's summary (`evaluate`, or the merge of its shards).
+    Evaluate {
+        model: &'a Model,
+        summary: &'a Summary,
+    },
+    /// A frontier (`frontier`, `frontier --policies`, or the merge of its
+    /// shards).
+    Frontier {
+        model: &'a Model,
+        result: &'a FrontierResult,
+        exhaustive: bool,
+    },
+}
+
+/// Print `finished` on `out`, as one JSON object with `json`, else as the
+/// terminal's table; then write its report folder when `report` is given
+/// (`Some(None)`: the scenario's default folder).
+fn show(
+    finished: Finished<'_>,
+    json: bool,
+    report: Option<Option<&Path>>,
+    out: &mut dyn Write,
+) -> Result<(), CliError> {
+    match finished {
+        Finished::Evaluate { model, summary } => {
+            let plan = plan_on_averages(model, &summary.policy);
+            let j = EvaluateJson::new(model, summary, &plan);
+            print(out, json, &j, || render::evaluate(model, &j))?;
+            write_report(report, &model.name, |bar| {
+                wearout::report::evaluate_report(model, summary, &j, bar)
+            })
+        }
+        Finished::Frontier {
+            model,
+            result,
+            exhaustive,
+        } => {
+            let j = FrontierJson::new(model, result, exhaustive);
+            print(out, json, &j, || render::frontier(model, result, &j))?;
+            write_report(report, &model.name, |bar| {
+                wearout::report::frontier_report(model, result, &j, bar)
+            })
+        }
+    }
+}
+
+/// `value` as pretty JSON with `json`, else `text()`.
+fn print<T: serde::Serialize>(
+    out: &mut dyn Write,
+    json: bool,
+    value: &T,
+    text: impl FnOnce() -> String,
+) -> Result<(), CliError> {
+    if json {
+        writeln!(out, "{}", serde_json::to_string_pretty(value)?)?;
+    } else {
+        write!(out, "{}", text())?;
+    }
+    Ok(())
+}
+
 /// Write a report folder when `--report` was given (`Some(None)`: the
 /// scenario's default folder) and say on stderr where it landed.
-pub(crate) fn write_report(
-    dir: Option<Option<&std::path::Path>>,
+fn write_report(
+    dir: Option<Option<&Path>>,
     scenario: &str,
-    make: impl FnOnce(
-        &dyn crate::run::Progress,
-    ) -> Result<crate::report::Report, crate::report::ReportError>,
-) -> Result<(), UserError> {
+    make: impl FnOnce(&dyn Progress) -> Result<Report, ReportError>,
+) -> Result<(), CliError> {
     let Some(dir) = dir else {
         return Ok(());
     };
-    let dir = dir.map_or_else(|| crate::report::default_dir(scenario), PathBuf::from);
+    let dir = dir.map_or_else(|| wearout::report::default_dir(scenario), PathBuf::from);
     let bar = progress::Bar::new("report", 0);
     let report = make(&bar);
     bar.finish();
     let index = report?.write_to(&dir)?;
     let _ = writeln!(std::io::stderr(), "report written: {}", index.display());
     Ok(())
-}
-
-/// Map a write error: a closed pipe is not a failure.
-pub(crate) fn io(e: std::io::Error) -> UserError {
-    if e.kind() == std::io::ErrorKind::BrokenPipe {
-        UserError("broken pipe".into())
-    } else {
-        UserError(format!("cannot write output: {e}"))
-    }
-}
-
-/// Check a target typed on the command line.
-pub(crate) fn check_target(t: Option<f64>, default: f64) -> Result<f64, UserError> {
-    match t {
-        None => Ok(default),
-        Some(x) if x > 0.0 && x <= 1.0 => Ok(x),
-        Some(x) => Err(UserError(format!(
-            "--target must be in (0, 1], e.g. 0.92 (got {x})"
-        ))),
-    }
 }

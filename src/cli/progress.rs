@@ -4,7 +4,7 @@ use std::io::IsTerminal;
 
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 
-use crate::run::Progress;
+use wearout::run::Progress;
 
 /// A progress bar on stderr, hidden unless stderr is a terminal.
 pub struct Bar {

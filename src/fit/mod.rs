@@ -372,6 +372,12 @@ impl LogParamCovariance {
         })
     }
 
+    /// The lower-triangular Cholesky factor `L` of `matrix`
+    /// (`matrix = L L^T`), for draws `center + L z`.
+    pub fn factor(&self) -> &[Vec<f64>] {
+        &self.chol
+    }
+
     /// Standard deviation of the `i`-th log-parameter.
     pub fn sd(&self, i: usize) -> Option<f64> {
         self.matrix.get(i).and_then(|r| r.get(i)).map(|v| v.sqrt())

@@ -1,20 +1,19 @@
-//! The Weibull probability plot (SVG) and atomic file writing.
+//! The Weibull probability plot (SVG), and writing it.
 //!
 //! Owns: Weibull probability paper (y = ln(-ln(1 - F)) against ln hours,
 //! labelled in hours and unreliability %), the data's plotting positions
 //! (median ranks, or Turnbull's estimate for inspection intervals and
 //! entry ages, with failures found at inspections drawn as bars across
 //! their span), the fitted line and its 95% confidence band (or an
-//! assumed-shape fit's lower bound), and writing files atomically.
+//! assumed-shape fit's lower bound).
 //! May use: `plotters` (SVG backend), `super::rank`, `super::turnbull`,
-//! `std::fs`.
+//! `crate::files` (to write the plot atomically).
 //!
 //! The band is pointwise, by the delta method on the log-quantile:
 //! `ln t_p = ln scale + w_p / shape` with `w_p = ln(-ln(1 - p))`, its
 //! variance `g' C g` from the covariance `C` of (ln shape, ln scale), and
 //! `t_p * exp(-/+ 1.96 sd)` drawn at each unreliability `p`.
 
-use std::io::Write;
 use std::ops::Range;
 use std::path::Path;
 
@@ -556,44 +555,17 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
     Ok(svg)
 }
 
-/// The temporary file beside `path` that an atomic write of it goes
-/// through: `.NAME.tmp-PID` in the same folder (so the rename stays on one
-/// file system). `None` when `path` has no file name.
-pub fn temp_beside(path: &Path) -> Option<std::path::PathBuf> {
-    let name = path.file_name()?;
-    let dir = path
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    Some(dir.join(format!(
-        ".{}.tmp-{}",
-        name.to_string_lossy(),
-        std::process::id()
-    )))
-}
-
-/// Write `bytes` to `path` atomically: a temporary file in the same folder,
-/// flushed, then renamed over the target.
+/// Write `bytes` to `path` atomically (see [`crate::files::write_atomic`]:
+/// a temporary file in the same folder, on the interrupt handler's list
+/// while it exists, renamed over the target when whole).
 ///
 /// # Errors
 /// [`FitError::Output`] naming the path when any step fails.
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), FitError> {
-    let fail = |m: String| FitError::Output {
+    crate::files::write_atomic(path, bytes).map_err(|e| FitError::Output {
         what: path.display().to_string(),
-        message: m,
-    };
-    let tmp = temp_beside(path).ok_or_else(|| fail("not a file name".into()))?;
-    let result = (|| -> std::io::Result<()> {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
-    if let Err(e) = result {
-        let _ = std::fs::remove_file(&tmp);
-        return Err(fail(e.to_string()));
-    }
-    Ok(())
+        message: e.to_string(),
+    })
 }
 
 #[cfg(test)]

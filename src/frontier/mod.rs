@@ -1,11 +1,12 @@
 //! The frontier search: the policies that no other policy beats on both
 //! cost and the chance of meeting the availability target.
 //!
-//! Owns: the search over replacement rules and stock levels, the
-//! non-dominated filter, the re-costing on fresh trials and the noise flags.
-//! May use: `sim`, `run`, `summary`, `model`, `analytic`, and `lp` (the one
-//! file that talks to good_lp). Reports progress through [`Progress`]; does
-//! no I/O.
+//! Owns: the search over replacement rules and stock levels and its
+//! result; the re-costing on fresh trials, the non-dominated filter and the
+//! noise flags are `recost`'s.
+//! May use: `sim`, `run`, `summary`, `model`, `recost` (its last step),
+//! `rayon`, and `lp` (the one file that talks to good_lp). Reports progress
+//! through [`Progress`]; does no I/O.
 //!
 //! How it searches (see DEVELOPERS.md for the reasoning):
 //! 1. **Screening.** Each part type is simulated alone (the other part types
@@ -34,15 +35,18 @@
 pub mod lp;
 
 use std::collections::{HashMap, HashSet};
-use std::ops::Range;
 
-use crate::model::{CostBasis, CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule, Stock};
+use rayon::prelude::*;
+
+use crate::model::{
+    CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule, SearchSpace, Stock,
+};
+use crate::recost::{
+    self, Costed, FrontierPoint, frontier_points, non_dominated, validation_range,
+};
 use crate::run::Progress;
 use crate::sim::{ActiveParts, Simulator};
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
-
-/// Validation trials start here, so they never overlap the search trials.
-pub const VALIDATION_OFFSET: u64 = 1 << 40;
 
 /// The most policies `--exhaustive` will try.
 pub const EXHAUSTIVE_LIMIT: u128 = 20_000;
@@ -91,36 +95,6 @@ impl FrontierConfig {
     pub const MAX_FRONTIER: usize = 24;
 }
 
-/// A policy with its figures on one set of trials.
-#[derive(Debug, Clone)]
-pub struct Costed {
-    pub policy: Policy,
-    /// The cost measure and its standard error.
-    pub cost: MeanSe,
-    pub chance: Chance,
-    pub summary: Summary,
-}
-
-/// Whether a frontier policy's difference from the previous (cheaper) one
-/// is inside the noise, by a paired comparison on the same trials.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct NoiseFlags {
-    /// The chance difference is within two paired standard errors.
-    pub chance_within_noise: bool,
-    /// The cost difference is within two paired standard errors.
-    pub cost_within_noise: bool,
-    pub chance_diff: MeanSe,
-    pub cost_diff: MeanSe,
-}
-
-/// One row of the reported frontier.
-#[derive(Debug, Clone)]
-pub struct FrontierPoint {
-    pub costed: Costed,
-    /// Against the previous row (None for the cheapest).
-    pub noise: Option<NoiseFlags>,
-}
-
 /// Where the search's effort went.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct SearchStats {
@@ -156,6 +130,40 @@ pub struct FrontierResult {
     /// The whole search-trial frontier before thinning and re-costing (for
     /// checks).
     pub search_frontier: Vec<(Policy, MeanSe, Chance)>,
+}
+
+impl FrontierResult {
+    /// The frontier of a list of policies re-costed without a search
+    /// (`wearout frontier --policies`, in one process or merged from
+    /// shards): the non-dominated ones, cheapest first, with their paired
+    /// noise flags against the row above, names kept as given. `seconds`
+    /// is the time the re-costing took.
+    pub fn of_list(
+        model: &Model,
+        recosted: Vec<Costed>,
+        validate_trials: u64,
+        target: f64,
+        seconds: f64,
+    ) -> Self {
+        let measure = recost::measure(model);
+        let points = frontier_points(&recosted, measure, false);
+        let stats = SearchStats {
+            recosted: recosted.len(),
+            seconds_validation: seconds,
+            ..SearchStats::default()
+        };
+        FrontierResult {
+            points,
+            searched: Vec::new(),
+            space_size: model.search.as_ref().map_or(0, |s| s.size()),
+            search_trials: 0,
+            validate_trials,
+            cost: measure,
+            target,
+            stats,
+            search_frontier: Vec::new(),
+        }
+    }
 }
 
 /// Why a frontier could not be searched.
@@ -284,27 +292,41 @@ impl Surrogate<'_> {
     fn fits(&self, combo: &[u16]) -> bool {
         self.budget.is_none_or(|b| self.capital(combo) <= b + 1e-9)
     }
-}
 
-/// Non-dominated filter on (cost: lower better, chance: higher better);
-/// returns indices sorted by cost, ties broken by higher chance.
-pub fn non_dominated(points: &[(f64, f64)]) -> Vec<usize> {
-    let mut idx: Vec<usize> = (0..points.len()).collect();
-    idx.sort_by(|&a, &b| {
-        points[a]
-            .0
-            .total_cmp(&points[b].0)
-            .then(points[b].1.total_cmp(&points[a].1))
-    });
-    let mut out = Vec::new();
-    let mut best = f64::NEG_INFINITY;
-    for i in idx {
-        if points[i].1 > best {
-            best = points[i].1;
-            out.push(i);
+    /// Every combination one part type's option away from `cur` that fits
+    /// the budget, by part type, then option.
+    fn neighbours(&self, cur: &[u16]) -> Vec<Vec<u16>> {
+        let mut out = Vec::new();
+        for (p, opts) in self.screened.iter().enumerate() {
+            for o in 0..opts.len() as u16 {
+                if o == cur[p] {
+                    continue;
+                }
+                let mut next = cur.to_vec();
+                next[p] = o;
+                if self.fits(&next) {
+                    out.push(next);
+                }
+            }
         }
+        out
     }
-    out
+
+    /// Per part type, the first option with the least `key`.
+    fn least_per_part(&self, key: impl Fn(&Screened) -> f64) -> Vec<u16> {
+        self.screened
+            .iter()
+            .map(|opts| {
+                let mut best = 0;
+                for (i, o) in opts.iter().enumerate() {
+                    if key(o) < key(&opts[best]) {
+                        best = i;
+                    }
+                }
+                best as u16
+            })
+            .collect()
+    }
 }
 
 /// Hypervolume of a set of (cost, chance) points against the reference
@@ -327,75 +349,9 @@ pub fn hypervolume(points: &[(f64, f64)], cost_ref: f64) -> f64 {
     hv
 }
 
-/// Cost and chance of a summary under the measure.
-fn cost_chance(s: &Summary, measure: CostMeasure) -> (MeanSe, Chance) {
-    (s.cost_measure(measure), s.chance())
-}
-
-/// Simulate `policy` in full on `range`.
-fn full(
-    model: &Model,
-    policy: &Policy,
-    range: Range<u64>,
-    target: f64,
-    progress: &dyn Progress,
-) -> Option<Summary> {
-    crate::run::evaluate(model, policy, range, target, progress)
-}
-
-/// The non-dominated policies among `recosted`, cheapest first, each with
-/// its paired noise flags against the one before it; named `F1`, `F2`, ...
-/// when `rename` (a search's frontier), else keeping their names (a list
-/// the user gave).
-pub fn frontier_points(
-    recosted: &[Costed],
-    measure: CostMeasure,
-    rename: bool,
-) -> Vec<FrontierPoint> {
-    let pts: Vec<(f64, f64)> = recosted
-        .iter()
-        .map(|c| (c.cost.mean, c.chance.value))
-        .collect();
-    let front = non_dominated(&pts);
-    let mut points: Vec<FrontierPoint> = Vec::with_capacity(front.len());
-    for (k, &i) in front.iter().enumerate() {
-        let mut costed = recosted[i].clone();
-        if rename {
-            costed.policy.name = format!("F{}", k + 1);
-            costed.summary.policy.name = costed.policy.name.clone();
-        }
-        let noise = points.last().map(|prev: &FrontierPoint| {
-            paired_noise(&prev.costed.summary, &costed.summary, measure)
-        });
-        points.push(FrontierPoint { costed, noise });
-    }
-    points
-}
-
-/// Paired noise flags between two policies on the same trials.
-pub fn paired_noise(a: &Summary, b: &Summary, measure: CostMeasure) -> NoiseFlags {
-    let n = a.trials().min(b.trials()) as usize;
-    let mut dc = crate::summary::Moments::default();
-    let mut dk = crate::summary::Moments::default();
-    let ca = a.trial_costs(measure.basis);
-    let cb = b.trial_costs(measure.basis);
-    for t in 0..n {
-        let ma = f64::from(u8::from(a.acc.trial_availability[t] >= a.target));
-        let mb = f64::from(u8::from(b.acc.trial_availability[t] >= b.target));
-        dk.push(mb - ma);
-        dc.push(cb[t] - ca[t]);
-    }
-    let chance_diff = MeanSe::from(&dk);
-    let cost_diff = MeanSe::from(&dc);
-    NoiseFlags {
-        chance_within_noise: chance_diff.mean.abs() <= 2.0 * chance_diff.se,
-        cost_within_noise: cost_diff.mean.abs() <= 2.0 * cost_diff.se,
-        chance_diff,
-        cost_diff,
-    }
-}
-
-/// Run the frontier search.
+/// Run the frontier search: the steps of the module comment, or with
+/// `config.exhaustive` every policy of the space in full, then the
+/// re-costing of the search frontier on fresh trials.
 ///
 /// # Errors
 /// When the scenario has no search space, `--exhaustive` meets a space that
@@ -413,265 +369,301 @@ pub fn search(
         return Err(FrontierError::NotCovered("a ready-units target"));
     }
     let options = Options::new(model).ok_or(FrontierError::NoSearchSpace)?;
-    let measure = space.cost;
+    let mut stats = SearchStats::default();
+    let searched = if config.exhaustive {
+        simulate_every_policy(model, space, &options, config, progress, &mut stats)?
+    } else {
+        search_on_the_surrogate(model, space, &options, config, progress, &mut stats)?
+    };
+    recost_the_frontier(model, space, config, searched, progress, stats)
+}
+
+/// `--exhaustive`: every policy of the space (within the spares budget) in
+/// full on the search trials, in parallel over policies, in odometer order.
+fn simulate_every_policy(
+    model: &Model,
+    space: &SearchSpace,
+    options: &Options,
+    config: &FrontierConfig,
+    progress: &dyn Progress,
+    stats: &mut SearchStats,
+) -> Result<Vec<Costed>, FrontierError> {
+    let t_start = std::time::Instant::now();
     let size = space.size();
     let n = config.search_trials;
-    let search_range = 0..n;
-    let mut stats = SearchStats::default();
-    let t_start = std::time::Instant::now();
-
-    // Policies simulated in full on the search trials.
-    let mut searched: Vec<(Policy, MeanSe, Chance, Summary)> = Vec::new();
-
-    if config.exhaustive {
-        if size > EXHAUSTIVE_LIMIT {
-            return Err(FrontierError::TooLarge {
-                size,
-                limit: EXHAUSTIVE_LIMIT,
-            });
-        }
-        progress.phase("exhaustive", size as u64 * n);
-        // Every combination in odometer order (first part type fastest).
-        let mut combos: Vec<Vec<u16>> = Vec::new();
-        let mut combo = vec![0u16; options.per_part.len()];
-        'odometer: loop {
-            combos.push(combo.clone());
-            for (digit, opts) in combo.iter_mut().zip(&options.per_part) {
-                *digit += 1;
-                if (*digit as usize) < opts.len() {
-                    continue 'odometer;
-                }
-                *digit = 0;
+    if size > EXHAUSTIVE_LIMIT {
+        return Err(FrontierError::TooLarge {
+            size,
+            limit: EXHAUSTIVE_LIMIT,
+        });
+    }
+    progress.phase("exhaustive", size as u64 * n);
+    // Every combination in odometer order (first part type fastest).
+    let mut combos: Vec<Vec<u16>> = Vec::new();
+    let mut combo = vec![0u16; options.per_part.len()];
+    'odometer: loop {
+        combos.push(combo.clone());
+        for (digit, opts) in combo.iter_mut().zip(&options.per_part) {
+            *digit += 1;
+            if (*digit as usize) < opts.len() {
+                continue 'odometer;
             }
-            break;
+            *digit = 0;
         }
-        let policies: Vec<Policy> = combos
-            .iter()
-            .enumerate()
-            .map(|(i, c)| options.policy(c, format!("p{}", i + 1)))
-            .filter(|p| {
-                space
-                    .spares_budget
-                    .is_none_or(|b| p.initial_stock_capital(model) <= b + 1e-9)
+        break;
+    }
+    let policies: Vec<Policy> = combos
+        .iter()
+        .enumerate()
+        .map(|(i, c)| options.policy(c, format!("p{}", i + 1)))
+        .filter(|p| {
+            space
+                .spares_budget
+                .is_none_or(|b| p.initial_stock_capital(model) <= b + 1e-9)
+        })
+        .collect();
+    if policies.is_empty() {
+        return Err(FrontierError::NothingFits(
+            space.spares_budget.unwrap_or(0.0),
+        ));
+    }
+    // Parallel over policies (each on one thread), in a fixed order.
+    let evaluated: Vec<Option<Summary>> = policies
+        .par_iter()
+        .map_init(crate::sim::Workspace::default, |ws, policy| {
+            if progress.cancelled() {
+                return None;
+            }
+            let s = crate::run::evaluate_on_thread(model, policy, 0..n, config.target, ws);
+            progress.advance(n);
+            Some(s)
+        })
+        .collect();
+    let searched = evaluated
+        .into_iter()
+        .map(|s| Ok(Costed::of(s.ok_or(FrontierError::Interrupted)?, space.cost)))
+        .collect::<Result<Vec<_>, _>>()?;
+    stats.evaluated = searched.len();
+    stats.seconds_search = t_start.elapsed().as_secs_f64();
+    Ok(searched)
+}
+
+/// Steps 1 to 4: screening, seeds, Pareto local search on the surrogate,
+/// and a spread of the surrogate frontier simulated in full on the search
+/// trials.
+fn search_on_the_surrogate(
+    model: &Model,
+    space: &SearchSpace,
+    options: &Options,
+    config: &FrontierConfig,
+    progress: &dyn Progress,
+    stats: &mut SearchStats,
+) -> Result<Vec<Costed>, FrontierError> {
+    let t_start = std::time::Instant::now();
+    let mut sur = screen(model, space, options, config, progress, stats)?;
+    stats.seconds_screening = t_start.elapsed().as_secs_f64();
+    let t_search = std::time::Instant::now();
+    let seeds = seeds(&mut sur, space, stats)?;
+    let archive = pareto_local_search(&mut sur, seeds, 40);
+    stats.surrogate_scored = sur.cache.len();
+    let picks = spread(&mut sur, &archive, config.max_full);
+    let searched = simulate_picks(model, space, options, config, picks, progress)?;
+    stats.evaluated = searched.len();
+    stats.seconds_search = t_search.elapsed().as_secs_f64();
+    Ok(searched)
+}
+
+/// Step 1, screening: each part type alone under each of its options, on the
+/// first `config.screen_trials` search trials, one option per task, in
+/// parallel over options; the surrogate built from the results.
+fn screen<'a>(
+    model: &'a Model,
+    space: &SearchSpace,
+    options: &Options,
+    config: &FrontierConfig,
+    progress: &dyn Progress,
+    stats: &mut SearchStats,
+) -> Result<Surrogate<'a>, FrontierError> {
+    let measure = space.cost;
+    let n_parts = model.parts.len();
+    let allowed_down = (1.0 - config.target) * model.units.len() as f64 * model.horizon;
+    let screen_n = config.search_trials.min(config.screen_trials.max(1));
+    let tasks: Vec<(usize, PartPolicy)> = options
+        .per_part
+        .iter()
+        .enumerate()
+        .flat_map(|(p, opts)| opts.iter().map(move |pp| (p, pp.clone())))
+        .collect();
+    progress.phase("screening", tasks.len() as u64 * screen_n);
+    let results: Vec<Option<Screened>> = tasks
+        .par_iter()
+        .map_init(crate::sim::Workspace::default, |ws, (p, pp)| {
+            let p = *p;
+            if progress.cancelled() {
+                return None;
+            }
+            let mut parts: Vec<PartPolicy> = vec![
+                PartPolicy {
+                    rule: Rule::RunToFailure,
+                    stock: Stock::single(0),
+                };
+                n_parts
+            ];
+            parts[p] = pp.clone();
+            let sim = Simulator::with_parts(model, &parts, ActiveParts::only(n_parts, p));
+            let capital = pp.stock.total() as f64 * model.parts[p].price;
+            let mut down = Vec::with_capacity(screen_n as usize);
+            let mut cost = Vec::with_capacity(screen_n as usize);
+            for t in 0..screen_n {
+                let o = sim.run(t, ws);
+                down.push(o.down_hours());
+                cost.push(o.parts[p].cost(measure.basis, capital));
+            }
+            progress.advance(screen_n);
+            let cost_mean = cost.iter().sum::<f64>() / cost.len().max(1) as f64;
+            Some(Screened {
+                down,
+                cost,
+                cost_mean,
+                capital,
             })
-            .collect();
-        if policies.is_empty() {
+        })
+        .collect();
+    let mut screened: Vec<Vec<Screened>> = vec![Vec::new(); n_parts];
+    for ((p, _), r) in tasks.iter().zip(results) {
+        screened[*p].push(r.ok_or(FrontierError::Interrupted)?);
+        stats.screening_runs += 1;
+    }
+    Ok(Surrogate {
+        screened,
+        allowed_down,
+        measure,
+        budget: space.spares_budget,
+        n: screen_n as usize,
+        cache: HashMap::new(),
+        _model: model,
+    })
+}
+
+/// Step 2, seeds: the marginal-analysis path from the cheapest policy and the
+/// linear programs' roundings, those within the budget; failing all, the
+/// policy of least capital.
+fn seeds(
+    sur: &mut Surrogate<'_>,
+    space: &SearchSpace,
+    stats: &mut SearchStats,
+) -> Result<Vec<Vec<u16>>, FrontierError> {
+    let mut seeds: Vec<Vec<u16>> = Vec::new();
+    let cheapest = sur.least_per_part(|o| o.cost_mean);
+    seeds.extend(marginal_path(sur, &cheapest));
+    seeds.extend(lp_seeds(sur, stats));
+    seeds.retain(|c| sur.fits(c));
+    if seeds.is_empty() {
+        // The cheapest-capital combination as a last seed.
+        let low = sur.least_per_part(|o| o.capital);
+        if !sur.fits(&low) {
             return Err(FrontierError::NothingFits(
                 space.spares_budget.unwrap_or(0.0),
             ));
         }
-        // Parallel over policies (each on one thread), in a fixed order.
-        use rayon::prelude::*;
-        let evaluated: Vec<Option<Summary>> = policies
-            .par_iter()
-            .map_init(crate::sim::Workspace::default, |ws, policy| {
-                if progress.cancelled() {
-                    return None;
-                }
-                let s = crate::run::evaluate_on_thread(
-                    model,
-                    policy,
-                    search_range.clone(),
-                    config.target,
-                    ws,
-                );
-                progress.advance(n);
-                Some(s)
-            })
-            .collect();
-        for (policy, s) in policies.into_iter().zip(evaluated) {
-            let s = s.ok_or(FrontierError::Interrupted)?;
-            let (c, k) = cost_chance(&s, measure);
-            searched.push((policy, c, k, s));
-        }
-        stats.evaluated = searched.len();
-        stats.seconds_search = t_start.elapsed().as_secs_f64();
-    } else {
-        // 1. Screening.
-        let n_parts = model.parts.len();
-        let allowed_down = (1.0 - config.target) * model.units.len() as f64 * model.horizon;
-        // Screening runs on the first `screen_n` search trials, one option
-        // per task, in parallel over options.
-        let screen_n = n.min(config.screen_trials.max(1));
-        let tasks: Vec<(usize, PartPolicy)> = options
-            .per_part
-            .iter()
-            .enumerate()
-            .flat_map(|(p, opts)| opts.iter().map(move |pp| (p, pp.clone())))
-            .collect();
-        progress.phase("screening", tasks.len() as u64 * screen_n);
-        use rayon::prelude::*;
-        let results: Vec<Option<Screened>> = tasks
-            .par_iter()
-            .map_init(crate::sim::Workspace::default, |ws, (p, pp)| {
-                let p = *p;
-                if progress.cancelled() {
-                    return None;
-                }
-                let mut parts: Vec<PartPolicy> = vec![
-                    PartPolicy {
-                        rule: Rule::RunToFailure,
-                        stock: Stock::single(0),
-                    };
-                    n_parts
-                ];
-                parts[p] = pp.clone();
-                let sim = Simulator::with_parts(model, &parts, ActiveParts::only(n_parts, p));
-                let capital = pp.stock.total() as f64 * model.parts[p].price;
-                let mut down = Vec::with_capacity(screen_n as usize);
-                let mut cost = Vec::with_capacity(screen_n as usize);
-                for t in 0..screen_n {
-                    let o = sim.run(t, ws);
-                    down.push(o.down_hours());
-                    let po = &o.parts[p];
-                    cost.push(match measure.basis {
-                        CostBasis::Spend => po.spend() + capital,
-                        CostBasis::TotalWithPenalty => po.total(),
-                    });
-                }
-                progress.advance(screen_n);
-                let cost_mean = cost.iter().sum::<f64>() / cost.len().max(1) as f64;
-                Some(Screened {
-                    down,
-                    cost,
-                    cost_mean,
-                    capital,
-                })
-            })
-            .collect();
-        let mut screened: Vec<Vec<Screened>> = vec![Vec::new(); n_parts];
-        for ((p, _), r) in tasks.iter().zip(results) {
-            screened[*p].push(r.ok_or(FrontierError::Interrupted)?);
-            stats.screening_runs += 1;
-        }
-        stats.seconds_screening = t_start.elapsed().as_secs_f64();
-        let t_search = std::time::Instant::now();
-        let mut sur = Surrogate {
-            screened,
-            allowed_down,
-            measure,
-            budget: space.spares_budget,
-            n: screen_n as usize,
-            cache: HashMap::new(),
-            _model: model,
-        };
-
-        // 2. Seeds.
-        let mut seeds: Vec<Vec<u16>> = Vec::new();
-        let cheapest: Vec<u16> = sur
-            .screened
-            .iter()
-            .map(|opts| {
-                let mut best = 0;
-                for (i, o) in opts.iter().enumerate() {
-                    if o.cost_mean < opts[best].cost_mean {
-                        best = i;
-                    }
-                }
-                best as u16
-            })
-            .collect();
-        seeds.extend(marginal_path(&mut sur, &cheapest));
-        seeds.extend(lp_seeds(&mut sur, &mut stats));
-        seeds.retain(|c| sur.fits(c));
-        if seeds.is_empty() {
-            // The cheapest-capital combination as a last seed.
-            let low: Vec<u16> = sur
-                .screened
-                .iter()
-                .map(|opts| {
-                    let mut best = 0;
-                    for (i, o) in opts.iter().enumerate() {
-                        if o.capital < opts[best].capital {
-                            best = i;
-                        }
-                    }
-                    best as u16
-                })
-                .collect();
-            if !sur.fits(&low) {
-                return Err(FrontierError::NothingFits(
-                    space.spares_budget.unwrap_or(0.0),
-                ));
-            }
-            seeds.push(low);
-        }
-
-        // 3. Pareto local search on the surrogate.
-        let archive = pareto_local_search(&mut sur, seeds, 40);
-        stats.surrogate_scored = sur.cache.len();
-
-        // 4. Full simulation of a spread of surrogate-frontier policies.
-        let picks = spread(&mut sur, &archive, config.max_full);
-        progress.phase("search", picks.len() as u64 * n);
-        let mut seen: HashSet<Vec<u16>> = HashSet::new();
-        for combo in picks {
-            if !seen.insert(combo.clone()) {
-                continue;
-            }
-            let policy = options.policy(&combo, String::new());
-            let s = full(
-                model,
-                &policy,
-                search_range.clone(),
-                config.target,
-                progress,
-            )
-            .ok_or(FrontierError::Interrupted)?;
-            let (c, k) = cost_chance(&s, measure);
-            searched.push((policy, c, k, s));
-        }
-        stats.evaluated = searched.len();
-        stats.seconds_search = t_search.elapsed().as_secs_f64();
+        seeds.push(low);
     }
+    Ok(seeds)
+}
 
-    // The frontier on the search trials.
-    let pts: Vec<(f64, f64)> = searched.iter().map(|s| (s.1.mean, s.2.value)).collect();
+/// Step 4, full simulation of the picked combinations (each once) on the search
+/// trials, where part types interact exactly.
+fn simulate_picks(
+    model: &Model,
+    space: &SearchSpace,
+    options: &Options,
+    config: &FrontierConfig,
+    picks: Vec<Vec<u16>>,
+    progress: &dyn Progress,
+) -> Result<Vec<Costed>, FrontierError> {
+    let n = config.search_trials;
+    progress.phase("search", picks.len() as u64 * n);
+    let mut seen: HashSet<Vec<u16>> = HashSet::new();
+    let mut searched = Vec::new();
+    for combo in picks {
+        if !seen.insert(combo.clone()) {
+            continue;
+        }
+        let policy = options.policy(&combo, String::new());
+        let s = crate::run::evaluate(model, &policy, 0..n, config.target, progress)
+            .ok_or(FrontierError::Interrupted)?;
+        searched.push(Costed::of(s, space.cost));
+    }
+    Ok(searched)
+}
+
+/// Step 5: the frontier on the search trials, thinned to at most
+/// `config.max_frontier` policies, re-costed on the validation trials and
+/// its frontier recomputed from the re-costed figures.
+fn recost_the_frontier(
+    model: &Model,
+    space: &SearchSpace,
+    config: &FrontierConfig,
+    searched: Vec<Costed>,
+    progress: &dyn Progress,
+    mut stats: SearchStats,
+) -> Result<FrontierResult, FrontierError> {
+    let measure = space.cost;
+    let pts: Vec<(f64, f64)> = searched
+        .iter()
+        .map(|s| (s.cost.mean, s.chance.value))
+        .collect();
     let full_front = non_dominated(&pts);
     let search_frontier: Vec<(Policy, MeanSe, Chance)> = full_front
         .iter()
-        .map(|&i| (searched[i].0.clone(), searched[i].1, searched[i].2))
+        .map(|&i| {
+            (
+                searched[i].policy.clone(),
+                searched[i].cost,
+                searched[i].chance,
+            )
+        })
         .collect();
-
     let front = thin(&full_front, &pts, config.max_frontier);
     stats.recosted = front.len();
 
-    // 5. Re-cost on fresh trials.
     let t_val = std::time::Instant::now();
-    let vrange = VALIDATION_OFFSET..VALIDATION_OFFSET + config.validate_trials;
+    let front_policies: Vec<Policy> = front
+        .iter()
+        .enumerate()
+        .map(|(k, &i)| Policy {
+            name: format!("F{}", k + 1),
+            ..searched[i].policy.clone()
+        })
+        .collect();
     progress.phase("validation", front.len() as u64 * config.validate_trials);
-    let mut recosted: Vec<Costed> = Vec::with_capacity(front.len());
-    for (k, &i) in front.iter().enumerate() {
-        let mut policy = searched[i].0.clone();
-        policy.name = format!("F{}", k + 1);
-        let s = full(model, &policy, vrange.clone(), config.target, progress)
-            .ok_or(FrontierError::Interrupted)?;
-        let (c, ch) = cost_chance(&s, measure);
-        recosted.push(Costed {
-            policy,
-            cost: c,
-            chance: ch,
-            summary: s,
-        });
-    }
+    let recosted = recost::recost(
+        model,
+        &front_policies,
+        validation_range(config.validate_trials),
+        config.target,
+        measure,
+        progress,
+    )
+    .ok_or(FrontierError::Interrupted)?;
     stats.seconds_validation = t_val.elapsed().as_secs_f64();
     let points = frontier_points(&recosted, measure, true);
-    let mut names = 0;
     let searched_out = searched
         .into_iter()
-        .map(|(mut p, c, k, _)| {
-            names += 1;
+        .enumerate()
+        .map(|(k, c)| {
+            let mut p = c.policy;
             if p.name.is_empty() {
-                p.name = format!("s{names}");
+                p.name = format!("s{}", k + 1);
             }
-            (p, c, k)
+            (p, c.cost, c.chance)
         })
         .collect();
     Ok(FrontierResult {
         points,
         searched: searched_out,
-        space_size: size,
-        search_trials: n,
+        space_size: space.size(),
+        search_trials: config.search_trials,
         validate_trials: config.validate_trials,
         cost: measure,
         target: config.target,
@@ -729,28 +721,18 @@ fn marginal_path(sur: &mut Surrogate<'_>, start: &[u16]) -> Vec<Vec<u16>> {
         let (c0, _) = sur.score(&cur);
         let r0 = risk(sur, &cur);
         let mut best: Option<(f64, Vec<u16>)> = None;
-        for p in 0..cur.len() {
-            for o in 0..sur.screened[p].len() as u16 {
-                if o == cur[p] {
-                    continue;
-                }
-                let mut next = cur.clone();
-                next[p] = o;
-                if !sur.fits(&next) {
-                    continue;
-                }
-                let (c1, _) = sur.score(&next);
-                let r1 = risk(sur, &next);
-                let gain = r0 - r1;
-                if gain <= 1e-12 {
-                    continue;
-                }
-                let dc = c1 - c0;
-                // A change that is cheaper and safer is taken at once.
-                let ratio = if dc <= 0.0 { f64::INFINITY } else { gain / dc };
-                if best.as_ref().is_none_or(|(b, _)| ratio > *b) {
-                    best = Some((ratio, next));
-                }
+        for next in sur.neighbours(&cur) {
+            let (c1, _) = sur.score(&next);
+            let r1 = risk(sur, &next);
+            let gain = r0 - r1;
+            if gain <= 1e-12 {
+                continue;
+            }
+            let dc = c1 - c0;
+            // A change that is cheaper and safer is taken at once.
+            let ratio = if dc <= 0.0 { f64::INFINITY } else { gain / dc };
+            if best.as_ref().is_none_or(|(b, _)| ratio > *b) {
+                best = Some((ratio, next));
             }
         }
         match best {
@@ -879,20 +861,10 @@ fn pareto_local_search(
             break;
         }
         for cur in batch {
-            for p in 0..cur.len() {
-                for o in 0..sur.screened[p].len() as u16 {
-                    if o == cur[p] {
-                        continue;
-                    }
-                    let mut next = cur.clone();
-                    next[p] = o;
-                    if !sur.fits(&next) {
-                        continue;
-                    }
-                    let (c, k) = sur.score(&next);
-                    if add(&mut archive, next.clone(), c, k) {
-                        frontier_queue.push(next);
-                    }
+            for next in sur.neighbours(&cur) {
+                let (c, k) = sur.score(&next);
+                if add(&mut archive, next.clone(), c, k) {
+                    frontier_queue.push(next);
                 }
             }
         }

@@ -6,10 +6,11 @@
 //!
 //! Owns: turning a finished result into those files, and writing them so
 //! that a run failing half-way leaves the previous report intact.
-//! May use: `result`, `summary`, `frontier`, `averages`, `model`, `dist`,
-//! `analytic` (Poisson pipeline), `plotters`, `csv`, `serde_json`, and
-//! `sim`/`run` only to re-run the reported trials for `trials.csv` (see
-//! `tables`). It runs no other simulation and never prints.
+//! May use: `result`, `summary`, `frontier`, `recost`, `averages`, `model`,
+//! `dist`, `analytic` (Poisson pipeline), `text`, `files` (the staging
+//! folder), `run` (its progress observer), `plotters`, `serde_json`; and
+//! only in `tables`, `csv` and `sim` to re-run the reported trials for
+//! `trials.csv`. It runs no other simulation and never prints.
 //!
 //! Writing: every file is first written in full to a staging folder
 //! inside the target folder, then each is renamed over its old version
@@ -27,9 +28,9 @@ mod tables;
 mod view;
 mod words;
 
-use std::io::Write;
 use std::path::{Path, PathBuf};
 
+use crate::files;
 use crate::frontier::FrontierResult;
 use crate::model::Model;
 use crate::result::{EvaluateJson, FrontierJson};
@@ -140,34 +141,21 @@ impl Report {
             .collect();
         all.push((MANIFEST, manifest.as_bytes()));
 
-        let staging = dir.join(format!(".wearout-report-tmp-{}", std::process::id()));
-        if staging.exists() {
-            let _ = std::fs::remove_dir_all(&staging);
+        // The staging folder is removed when this function returns, and by
+        // the interrupt handler if the process is stopped before.
+        let staging = files::TempDir::create(
+            &dir.join(format!(".wearout-report-tmp-{}", std::process::id())),
+        )
+        .map_err(|e| fail(format!("cannot create a staging folder in it: {e}")))?;
+        for (name, bytes) in &all {
+            files::write_synced(&staging.path().join(name), bytes)
+                .map_err(|e| fail(format!("{name}: {e}")))?;
         }
-        std::fs::create_dir(&staging)
-            .map_err(|e| fail(format!("cannot create {}: {e}", staging.display())))?;
-        let staged = (|| -> Result<(), String> {
-            for (name, bytes) in &all {
-                let path = staging.join(name);
-                let mut file = std::fs::File::create(&path).map_err(|e| format!("{name}: {e}"))?;
-                file.write_all(bytes).map_err(|e| format!("{name}: {e}"))?;
-                file.sync_all().map_err(|e| format!("{name}: {e}"))?;
-            }
-            Ok(())
-        })();
-        if let Err(m) = staged {
-            let _ = std::fs::remove_dir_all(&staging);
-            return Err(fail(m));
-        }
-        let mut renamed = Ok(());
         for (name, _) in &all {
-            if let Err(e) = std::fs::rename(staging.join(name), dir.join(name)) {
-                renamed = Err(fail(format!("{name}: {e}")));
-                break;
-            }
+            std::fs::rename(staging.path().join(name), dir.join(name))
+                .map_err(|e| fail(format!("{name}: {e}")))?;
         }
-        let _ = std::fs::remove_dir_all(&staging);
-        renamed?;
+        drop(staging);
         // Files the previous report wrote and this one does not.
         for name in old {
             if plain_name(&name) && name != MANIFEST && self.file(&name).is_none() {

@@ -4,7 +4,8 @@
 //! policy, with the cost components).
 //!
 //! Owns: the CSV columns and the re-run of the reported trials.
-//! May use: `csv`, `sim`, `run`, `summary`, `super::view`.
+//! May use: `csv`, `sim`, `run`, `outcome`, `result`, `model`,
+//! `super::view`.
 //!
 //! `Summary` keeps three numbers per trial (availability, total, spend),
 //! not the cost components, so `trials.csv` re-runs the reported trials

@@ -3,15 +3,17 @@
 //! them the figures single out, and the number formats people read.
 //!
 //! Owns: the report's view of a result and its formatting helpers.
-//! May use: `model`, `summary`, `frontier`, `averages`, `analytic`, `dist`.
+//! May use: `model`, `summary`, `recost`, `averages`, `analytic`, `dist`,
+//! `text`.
 //! No simulation, no I/O.
 
 use crate::analytic::PoissonPipeline;
 use crate::averages::{AveragesPlan, plan_on_averages};
 use crate::dist::LeadTime;
-use crate::frontier::NoiseFlags;
 use crate::model::{CostBasis, CostMeasure, Model, Policy, Rule};
+use crate::recost::NoiseFlags;
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
+use crate::text::{currency, num};
 
 /// Chance levels the words and the level table speak of.
 pub const LEVELS: [f64; 7] = [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99];
@@ -79,6 +81,14 @@ impl PolicyView<'_> {
     /// the simulated demand rate over the horizon.
     pub fn lead_time_demand(&self, model: &Model, p: usize) -> f64 {
         self.demands(p) / model.horizon * model.parts[p].lead_time.mean()
+    }
+
+    /// The number of part type `p`'s spares in resupply in the steady
+    /// state: Poisson with mean [`PolicyView::lead_time_demand`] (Palm's
+    /// theorem, whatever the lead-time distribution); `None` if that mean
+    /// is not a number of at least 0.
+    pub fn pipeline(&self, model: &Model, p: usize) -> Option<PoissonPipeline> {
+        PoissonPipeline::new(self.lead_time_demand(model, p)).ok()
     }
 
     /// Chance that availability reaches at least `level`.
@@ -162,20 +172,12 @@ impl<'a> View<'a> {
 
     /// The currency, with a leading space, or nothing.
     pub fn cur(&self) -> String {
-        if self.model.currency.is_empty() {
-            String::new()
-        } else {
-            format!("\u{a0}{}", self.model.currency)
-        }
+        currency(&self.model.currency, "\u{a0}", "")
     }
 
     /// The currency in brackets, with a leading space, or nothing.
     pub fn cur_paren(&self) -> String {
-        if self.model.currency.is_empty() {
-            String::new()
-        } else {
-            format!(" ({})", self.model.currency)
-        }
+        currency(&self.model.currency, " (", ")")
     }
 }
 
@@ -228,62 +230,9 @@ pub fn percentiles(xs: &[f64], ps: &[f64]) -> Vec<f64> {
     ps.iter().map(|&p| percentile_sorted(&s, p)).collect()
 }
 
-/// Poisson quantile: the smallest `k` with `P(N <= k) >= q`, for a
-/// pipeline of mean `m` (Palm's theorem: the number of spares in
-/// resupply under one-for-one ordering is Poisson with mean demand rate x
-/// mean lead time, whatever the lead-time distribution).
-pub fn poisson_quantile(m: f64, q: f64) -> u32 {
-    let Ok(p) = PoissonPipeline::new(m.max(0.0)) else {
-        return 0;
-    };
-    let mut k = 0;
-    while p.cdf(k) < q && k < 100_000 {
-        k += 1;
-    }
-    k
-}
-
-/// The steady-state chance that a demand finds a spare on the shelf with
-/// stock `s` and pipeline mean `m`: `P(N <= s - 1)` (PASTA).
-pub fn poisson_fill_rate(m: f64, s: u32) -> f64 {
-    PoissonPipeline::new(m.max(0.0))
-        .map(|p| p.fill_rate(s))
-        .unwrap_or(f64::NAN)
-}
-
 // ---------------------------------------------------------------------------
 // Formats
 // ---------------------------------------------------------------------------
-
-/// A number with thousands separators and `decimals` decimals.
-pub fn num(x: f64, decimals: usize) -> String {
-    if !x.is_finite() {
-        return "-".to_string();
-    }
-    let s = format!("{:.*}", decimals, x.abs());
-    let (int, frac) = match s.find('.') {
-        Some(i) => (&s[..i], &s[i..]),
-        None => (s.as_str(), ""),
-    };
-    let mut out = String::new();
-    for (i, ch) in int.chars().enumerate() {
-        if i > 0 && (int.len() - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(ch);
-    }
-    let sign = if x < 0.0 && s.chars().any(|ch| ch != '0' && ch != '.') {
-        "-"
-    } else {
-        ""
-    };
-    format!("{sign}{out}{frac}")
-}
-
-/// Money in whole units with separators: `2,791,450`.
-pub fn money(x: f64) -> String {
-    num(x, 0)
-}
 
 /// Money in short form: `2.79 M`, `18.5 k`, `950`.
 pub fn money_short(x: f64) -> String {
@@ -316,6 +265,16 @@ pub fn chance_pct(x: f64) -> String {
     } else {
         format!("{p:.0}\u{a0}%")
     }
+}
+
+/// A chance with its 95 % interval: `76 % [73 % to 79 %]`.
+pub fn chance_with_interval(c: &Chance) -> String {
+    format!(
+        "{} [{} to {}]",
+        chance_pct(c.value),
+        chance_pct(c.lo),
+        chance_pct(c.hi)
+    )
 }
 
 /// An availability (or share) as a percentage with one decimal.
@@ -430,19 +389,5 @@ mod tests {
         assert_eq!(num(1234567.0, 0), "1,234,567");
         assert_eq!(count_words(2), "two");
         assert_eq!(count_words(12), "12");
-    }
-
-    #[test]
-    fn poisson_quantiles_match_tables() {
-        // Poisson cumulative table (e.g. CRC Standard Probability and
-        // Statistics Tables; figures from memory, checked by summing the
-        // pmf by hand): mean 2, P(N <= 4) = 0.9473, P(N <= 5) = 0.9834, so
-        // the 95 % quantile is 5 and the 90 % quantile is 4.
-        assert_eq!(poisson_quantile(2.0, 0.95), 5);
-        assert_eq!(poisson_quantile(2.0, 0.90), 4);
-        // Mean 0.5: P(N = 0) = e^-0.5 = 0.6065, so the 50 % quantile is 0.
-        assert_eq!(poisson_quantile(0.5, 0.5), 0);
-        // Fill rate with s = 1: P(N = 0) = e^-m.
-        assert!((poisson_fill_rate(0.5, 1) - (-0.5f64).exp()).abs() < 1e-12);
     }
 }

@@ -4,21 +4,17 @@
 //! figures assume and the cautions.
 //!
 //! Owns: every sentence and table of `index.html` and `summary.md`.
-//! May use: `super::view`, `super::doc`, `model`. No simulation, no I/O.
+//! May use: `super::view`, `super::doc`, `model`, `recost`, `result`,
+//! `text`. No simulation, no I/O.
 
 use super::doc::{Align, Block, Figure, Span, b, c, t};
 use super::view::{
-    Kind, LEVELS, PolicyView, View, chance_pct, count_words, display, hours, lead_time_words,
-    money, money_short, num, pct_trim, pct1, poisson_fill_rate, rule_short, rule_words, trim,
+    Kind, LEVELS, PolicyView, View, chance_pct, chance_with_interval, count_words, display, hours,
+    lead_time_words, money_short, pct_trim, pct1, rule_short, rule_words, trim,
 };
 use crate::model::{CostBasis, CostStatistic, Model, Rule};
-
-/// The caution every report carries.
-pub const CAUTION: &str = "wearout is decision support only. Its figures come from a model of the \
-fleet and are only as good as the lives, lead times and costs it was given. Regulator-approved \
-maintenance programmes, manufacturers' hard life limits, local codes and the judgement of \
-licensed engineers come first: no figure here overrides them. Safety-critical parts are never \
-planned to run to failure.";
+use crate::recost::NoiseFlags;
+use crate::text::{CAUTION, money, num};
 
 /// The model's rules in one paragraph.
 pub const RULES: &str = "Each trial is one possible future of the whole fleet over the horizon; \
@@ -407,12 +403,7 @@ fn levels(v: &View<'_>) -> Vec<Block> {
                 rows.push(vec![
                     label,
                     p.name().to_string(),
-                    format!(
-                        "{} [{} to {}]",
-                        chance_pct(p.chance.value),
-                        chance_pct(p.chance.lo),
-                        chance_pct(p.chance.hi)
-                    ),
+                    chance_with_interval(&p.chance),
                     money(p.cost.mean),
                     extra,
                     settings(v.model, p),
@@ -726,6 +717,7 @@ fn part_table(v: &View<'_>) -> Block {
                 None => "-".into(),
             };
             let ltd = pv.lead_time_demand(model, p);
+            let pipeline = pv.pipeline(model, p);
             let demands = pv.demands(p);
             let served = if demands > 0.0 {
                 chance_pct(1.0 - m.stockouts.mean() / demands)
@@ -745,11 +737,11 @@ fn part_table(v: &View<'_>) -> Block {
                 format!(
                     "{} (95\u{a0}%:\u{a0}{})",
                     num(ltd, 2),
-                    super::view::poisson_quantile(ltd, 0.95)
+                    pipeline.map_or(0, |x| x.quantile(0.95))
                 ),
                 format!(
                     "{} / {served}",
-                    chance_pct(poisson_fill_rate(ltd, pp.stock.total()))
+                    chance_pct(pipeline.map_or(f64::NAN, |x| x.fill_rate(pp.stock.total())))
                 ),
                 format!(
                     "{} / {}",
@@ -787,14 +779,9 @@ fn part_table(v: &View<'_>) -> Block {
     }
 }
 
-/// A part type's setting in a table cell: `RTF S1`, `A8,000 S2`.
+/// A part type's setting in a table cell: `RTF S1`, `A8000 S2`.
 fn compact(pp: &crate::model::PartPolicy) -> String {
-    let rule = match pp.rule {
-        Rule::RunToFailure => "RTF".to_string(),
-        Rule::Age(t) => format!("A{}", num(t, 0)),
-        Rule::Block(t) => format!("B{}", num(t, 0)),
-    };
-    format!("{rule}\u{a0}S{}", pp.stock)
+    format!("{}\u{a0}S{}", pp.rule.short(), pp.stock)
 }
 
 /// Every reported policy in two tables: the figures, then the settings.
@@ -807,12 +794,7 @@ fn all_policies(v: &View<'_>) -> Vec<Block> {
             let a = p.summary.availability();
             vec![
                 p.name().to_string(),
-                format!(
-                    "{} [{} to {}]",
-                    chance_pct(p.chance.value),
-                    chance_pct(p.chance.lo),
-                    chance_pct(p.chance.hi)
-                ),
+                chance_with_interval(&p.chance),
                 format!("{}\u{a0}±\u{a0}{}", money(p.cost.mean), money(p.cost.se)),
                 format!(
                     "{:.1} / {:.1} / {}",
@@ -825,15 +807,7 @@ fn all_policies(v: &View<'_>) -> Vec<Block> {
                     pct1(p.plan.availability),
                     if p.plan.meets_target { "met" } else { "missed" }
                 ),
-                match p.noise {
-                    None => "-".into(),
-                    Some(n) => match (n.chance_within_noise, n.cost_within_noise) {
-                        (true, true) => "same within noise".into(),
-                        (true, false) => "chance same within noise".into(),
-                        (false, true) => "cost same within noise".into(),
-                        (false, false) => "differs".into(),
-                    },
-                },
+                p.noise.as_ref().map_or("-", NoiseFlags::words).to_string(),
             ]
         })
         .collect();

@@ -4,6 +4,9 @@
 //! `docs/scenario-format.md`), the embedded demo scenario, and every check
 //! of what a user typed, with errors naming the file, field path, line and
 //! what is allowed. The only module that knows TOML.
+//! Files: `tree` (the TOML walker with its places for messages) and
+//! `network` (the keys of sites, a depot, lateral supply, repair, ready
+//! units and stock per site).
 //! May use: `model`, `dist`, the `tree` walker; `fit` (records reader and
 //! maximum-likelihood fits) and `uncertainty` for a life fitted to records,
 //! the only file the scenario layer reads besides the scenario itself.
@@ -23,12 +26,12 @@ use crate::fit::{
 };
 use crate::model::{
     CostBasis, CostMeasure, CostStatistic, FleetGroup, InitialAge, Model, PartPolicy, PartSearch,
-    PartType, Policy, Position, Rule, SearchSpace, UnitType,
+    PartType, Policy, Position, Rule, SearchSpace, Site, UnitType,
 };
 use crate::uncertainty::LifeUncertainty;
-use tree::{Source, Tbl, Val, each};
+use tree::{Tbl, Text, Val, each};
 
-pub use tree::suggest;
+pub use tree::{did_you_mean, suggest};
 
 /// The demo scenario compiled into the binary.
 pub const DEMO: &str = include_str!("../../scenarios/demo.toml");
@@ -56,11 +59,62 @@ pub enum LoadError {
     Invalid(#[from] ScenarioError),
 }
 
-/// Load and validate a scenario file.
+/// Where a scenario came from, with its text as it was read: what a shard
+/// file embeds so that a merge can rebuild the model anywhere.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Source {
+    /// The path as given (`None`: the embedded demo).
+    pub file: Option<String>,
+    /// The absolute folder of the file, for the records files it names.
+    pub dir: Option<String>,
+    /// The scenario text as read.
+    pub text: String,
+}
+
+impl Source {
+    /// The embedded demo's source.
+    pub fn demo() -> Self {
+        Source {
+            file: None,
+            dir: None,
+            text: DEMO.to_string(),
+        }
+    }
+
+    /// The name the scenario is reported under: its path as given, or
+    /// [`DEMO_FILE`].
+    pub fn label(&self) -> &str {
+        self.file.as_deref().unwrap_or(DEMO_FILE)
+    }
+
+    /// Parse and validate the text again, records files read from `dir`.
+    ///
+    /// # Errors
+    /// As [`parse_with_base`].
+    pub fn parse(&self) -> Result<Model, ScenarioError> {
+        match &self.file {
+            Some(f) => parse_with_base(
+                f,
+                &self.text,
+                Some(Path::new(self.dir.as_deref().unwrap_or("."))),
+            ),
+            None => parse(DEMO_FILE, &self.text),
+        }
+    }
+}
+
+/// A scenario loaded: the validated model and where it came from.
+#[derive(Debug, Clone)]
+pub struct Loaded {
+    pub model: Model,
+    pub source: Source,
+}
+
+/// Load and validate a scenario file, keeping its text.
 ///
 /// # Errors
 /// When the file cannot be read or is not a valid scenario.
-pub fn load(path: &Path) -> Result<Model, LoadError> {
+pub fn load(path: &Path) -> Result<Loaded, LoadError> {
     let file = path.display().to_string();
     let bytes = std::fs::read(path).map_err(|e| LoadError::Unreadable {
         file: file.clone(),
@@ -71,17 +125,39 @@ pub fn load(path: &Path) -> Result<Model, LoadError> {
         reason: "it is not UTF-8 text".to_string(),
     })?;
     let base = path.parent().unwrap_or(Path::new(""));
-    Ok(parse_with_base(&file, &text, Some(base))?)
+    let model = parse_with_base(&file, &text, Some(base))?;
+    // The folder as an absolute path, so that a shard merged elsewhere
+    // still finds the records files the scenario names.
+    let dir = if base.as_os_str().is_empty() {
+        Path::new(".")
+    } else {
+        base
+    };
+    let dir = std::fs::canonicalize(dir).unwrap_or_else(|_| dir.to_path_buf());
+    Ok(Loaded {
+        model,
+        source: Source {
+            file: Some(file),
+            dir: Some(dir.display().to_string()),
+            text,
+        },
+    })
 }
 
 /// Load a scenario file, or the embedded demo when `path` is `None`.
 ///
 /// # Errors
 /// As [`load`].
-pub fn load_or_demo(path: Option<&Path>) -> Result<(Model, String), LoadError> {
+pub fn load_or_demo(path: Option<&Path>) -> Result<Loaded, LoadError> {
     match path {
-        Some(p) => load(p).map(|m| (m, p.display().to_string())),
-        None => Ok((parse(DEMO_FILE, DEMO)?, DEMO_FILE.to_string())),
+        Some(p) => load(p),
+        None => {
+            let source = Source::demo();
+            Ok(Loaded {
+                model: source.parse()?,
+                source,
+            })
+        }
     }
 }
 
@@ -106,7 +182,7 @@ pub fn parse_with_base(
     text: &str,
     base: Option<&Path>,
 ) -> Result<Model, ScenarioError> {
-    let src = Source { file, text };
+    let src = Text { file, text };
     let doc = DeTable::parse(text).map_err(|e| {
         let span = e.span().unwrap_or(0..0);
         let msg = e.message().trim().to_string();
@@ -137,6 +213,7 @@ fn dist_err(v: &Val<'_, '_>, e: DistError) -> ScenarioError {
 struct Defaults {
     holding: Option<HoldingSpec>,
     lead_time: Option<LeadTime>,
+    initial_age: Option<AgeSpec>,
 }
 
 #[derive(Clone, Copy)]
@@ -540,10 +617,7 @@ fn read_part(
     };
     let hard_limit = t.with("hard_limit_hours", |v| v.positive())?;
     let repair = t.with("repair", network::read_repair)?;
-    let safety = t.with("safety_critical", |v| match v.value {
-        toml::de::DeValue::Boolean(b) => Ok(*b),
-        _ => Err(v.error("expected true or false")),
-    })?;
+    let safety = t.with("safety_critical", |v| v.boolean())?;
     if safety == Some(false) && hard_limit.is_some() {
         return Err(t.error(
             "a part with `hard_limit_hours` is safety-critical here (never run to failure, never kept past the limit); remove `safety_critical = false` or the limit",
@@ -578,6 +652,25 @@ fn read_part(
         hard_limit,
         life_uncertainty,
         repair,
+    })
+}
+
+/// The index of the part type named `name`, or an error at `at` saying
+/// that `who` names a part type the scenario does not define, with the
+/// closest name and the list.
+fn part_named(
+    parts: &[PartType],
+    name: &str,
+    at: &Val<'_, '_>,
+    who: &str,
+) -> Result<usize, ScenarioError> {
+    parts.iter().position(|p| p.name == name).ok_or_else(|| {
+        let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
+        at.error(format!(
+            "{who} names part type `{name}`, which the scenario does not define{}; part types: {}",
+            did_you_mean(name, names.iter().copied()),
+            names.join(", ")
+        ))
     })
 }
 
@@ -703,23 +796,16 @@ fn read_policy(
     layout: &network::Layout,
 ) -> Result<Policy, ScenarioError> {
     let t = v.table()?;
-    let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
     let mut out: Vec<Option<PartPolicy>> = vec![None; parts.len()];
     t.entries(|key, v| {
-        let Some(pid) = parts.iter().position(|p| p.name == key) else {
-            let hint = suggest(key, names.iter().copied())
-                .map(|c| format!(" (did you mean `{c}`?)"))
-                .unwrap_or_default();
-            return Err(v.error(format!(
-                "policy names part type `{key}`, which the scenario does not define{hint}; part types: {}",
-                names.join(", ")
-            )));
-        };
+        let pid = part_named(parts, key, &v, "policy")?;
         let pt = v.table()?;
         let rule = read_rule(&pt, &parts[pid])?;
-        let stock = pt.need("stock", "base-stock level S (a whole number, 0 or more)", |v| {
-            network::read_stock(v, layout)
-        })?;
+        let stock = pt.need(
+            "stock",
+            "base-stock level S (a whole number, 0 or more)",
+            |v| network::read_stock(v, layout),
+        )?;
         pt.finish(&["rule", "interval_hours", "interval_fraction", "stock"])?;
         out[pid] = Some(PartPolicy { rule, stock });
         Ok(())
@@ -924,7 +1010,6 @@ fn read_search(
     let validate_trials = t
         .with("validate_trials", |v| v.integer(1, 100_000_000))?
         .unwrap_or(10_000) as u64;
-    let names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
     // [search.every_part] fills in what a part's own table leaves out.
     let every_raw = t.with("every_part", |v| Ok((v.value.clone(), v.span)))?;
     let every_path = t.child_path("every_part");
@@ -949,14 +1034,7 @@ fn read_search(
     t.with("parts", |v| {
         let pt = v.table()?;
         pt.entries(|key, v| {
-            let Some(pid) = parts.iter().position(|p| p.name == key) else {
-                let hint = suggest(key, names.iter().copied())
-                    .map(|c| format!(" (did you mean `{c}`?)"))
-                    .unwrap_or_default();
-                return Err(v.error(format!(
-                    "the search names part type `{key}`, which the scenario does not define{hint}"
-                )));
-            };
+            let pid = part_named(parts, key, &v, "the search")?;
             let tb = v.table()?;
             let ps = read_part_search(&tb, &parts[pid], every_tbl.as_ref(), layout)?;
             tb.finish(SEARCH_PART_KEYS)?;
@@ -998,8 +1076,80 @@ fn read_search(
     })
 }
 
+/// The `[scenario]` table.
+struct ScenarioTable {
+    name: String,
+    description: String,
+    horizon: Hours,
+    downtime_penalty: f64,
+    /// The availability target; optional with a `[ready_units]` target.
+    target: Option<f64>,
+    seed: u64,
+    trials: u64,
+    currency: String,
+    parameter_uncertainty: bool,
+}
+
+/// A whole scenario file: each table in turn, then the model checked as a
+/// whole (a named policy that breaks a safety-critical part's limit).
 fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, ScenarioError> {
-    let sc = root.need("scenario", "the [scenario] table with name, horizon_hours, ...", |v| {
+    let sc = read_scenario_table(root)?;
+    let defaults = read_defaults(root)?;
+    let parts = read_parts(root, &defaults, base)?;
+    let unit_types = read_unit_types(root, &parts)?;
+    let sites = network::read_sites(root)?;
+    let groups = read_fleet(root, &parts, &unit_types, &sites, &defaults)?;
+    let mut layout = network::Layout::new(&sites, false);
+    network::check_sites_used(root, &layout, &groups)?;
+    let depot = network::read_depot(root, &layout)?;
+    layout.depot = depot.is_some();
+    let lateral = network::read_lateral(root, &layout)?;
+    let ready = network::read_ready(root, &layout, &groups)?;
+    let policies = read_policies(root, &parts, &layout)?;
+    let search = root.with("search", |v| read_search(v, &parts, &layout))?;
+    root.finish(ROOT_KEYS)?;
+
+    let units = Model::flatten_units(&unit_types, &groups);
+    let (ready, target) = match ready {
+        Some((r, share)) => (Some(r), share),
+        // Without [ready_units] the availability target was required.
+        None => (None, sc.target.unwrap_or(1.0)),
+    };
+    let model = Model {
+        name: sc.name,
+        description: sc.description,
+        horizon: sc.horizon,
+        downtime_penalty: sc.downtime_penalty,
+        target,
+        availability_target: sc.target,
+        ready,
+        seed: sc.seed,
+        trials: sc.trials,
+        parts,
+        unit_types,
+        groups,
+        units,
+        sites,
+        depot,
+        lateral,
+        policies: policies.iter().map(|(p, _)| p.clone()).collect(),
+        search,
+        currency: sc.currency,
+        parameter_uncertainty: sc.parameter_uncertainty,
+    };
+    for (p, span) in &policies {
+        if let Some(msg) = model.safety_violation(p) {
+            return Err(root
+                .src
+                .error(&format!("policies.{}", p.name), span.0..span.1, msg));
+        }
+    }
+    Ok(model)
+}
+
+/// `[scenario]`: name, horizon, penalty, target and the run's defaults.
+fn read_scenario_table(root: &Tbl<'_, '_>) -> Result<ScenarioTable, ScenarioError> {
+    root.need("scenario", "the [scenario] table with name, horizon_hours, ...", |v| {
         let t = v.table()?;
         let name = t.need("name", "a short name, e.g. \"quarry\"", |v| {
             let s = v.string()?;
@@ -1035,10 +1185,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
         let trials = t.with("trials", |v| v.integer(1, 1_000_000_000))?.unwrap_or(2000) as u64;
         let currency = t.with("currency", |v| v.string().map(str::to_string))?.unwrap_or_default();
         let uncertainty = t
-            .with("parameter_uncertainty", |v| match v.value {
-                toml::de::DeValue::Boolean(b) => Ok(*b),
-                _ => Err(v.error("expected true or false")),
-            })?
+            .with("parameter_uncertainty", |v| v.boolean())?
             .unwrap_or(false);
         t.finish(&[
             "name",
@@ -1051,107 +1198,145 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
             "currency",
             "parameter_uncertainty",
         ])?;
-        Ok((name, description, horizon, penalty, target, seed, trials, currency, uncertainty))
-    })?;
-    let (
-        name,
-        description,
-        horizon,
-        downtime_penalty,
-        sc_target,
-        seed,
-        trials,
-        currency,
-        parameter_uncertainty,
-    ) = sc;
+        Ok(ScenarioTable {
+            name,
+            description,
+            horizon,
+            downtime_penalty: penalty,
+            target,
+            seed,
+            trials,
+            currency,
+            parameter_uncertainty: uncertainty,
+        })
+    })
+}
 
-    let mut age_default: Option<AgeSpec> = None;
-    let defaults = root
+/// `[defaults]`: holding cost, lead time and initial age for part types
+/// and fleet entries that give none.
+fn read_defaults(root: &Tbl<'_, '_>) -> Result<Defaults, ScenarioError> {
+    Ok(root
         .with("defaults", |v| {
             let t = v.table()?;
             let holding = t.with("holding", read_holding)?;
             let lead_time = t.with("lead_time", read_lead)?;
-            age_default = t.with("initial_age", read_age)?;
+            let initial_age = t.with("initial_age", read_age)?;
             t.finish(&["holding", "lead_time", "initial_age"])?;
-            Ok(Defaults { holding, lead_time })
+            Ok(Defaults {
+                holding,
+                lead_time,
+                initial_age,
+            })
         })?
         .unwrap_or(Defaults {
             holding: None,
             lead_time: None,
-        });
+            initial_age: None,
+        }))
+}
 
-    let parts: Vec<PartType> = root.need("parts", "at least one [parts.NAME] table", |v| {
+/// `[parts.NAME]`: at least one part type.
+fn read_parts(
+    root: &Tbl<'_, '_>,
+    defaults: &Defaults,
+    base: Option<&Path>,
+) -> Result<Vec<PartType>, ScenarioError> {
+    root.need("parts", "at least one [parts.NAME] table", |v| {
         let t = v.table()?;
         let parts = t.entries(|key, v| {
             check_name(&v, key)?;
-            read_part(key, v, &defaults, base)
+            read_part(key, v, defaults, base)
         })?;
         if parts.is_empty() {
             return Err(v.error("define at least one part type as [parts.NAME]"));
         }
         Ok(parts)
-    })?;
-    let part_names: Vec<&str> = parts.iter().map(|p| p.name.as_str()).collect();
+    })
+}
 
-    let unit_types: Vec<UnitType> = root.need("units", "at least one [units.NAME] table with positions", |v| {
-        let t = v.table()?;
-        let out = t.entries(|key, v| {
-            check_name(&v, key)?;
-            let ut = v.table()?;
-            let mut counts = std::collections::HashMap::<String, usize>::new();
-            let positions = ut.need("positions", "a list of part types, e.g. [\"engine\", \"pump\", \"pump\"]", |v| {
-                let ps = each(&v, |x| {
-                    let (pname, part) = if x.is_table() {
-                        let pt = x.table()?;
-                        let n = pt.need("name", "the position's name", |v| v.string().map(str::to_string))?;
-                        let p = pt.need("part", "the part type it holds", |v| v.string().map(str::to_string))?;
-                        pt.finish(&["name", "part"])?;
-                        (Some(n), p)
-                    } else {
-                        (None, x.string()?.to_string())
-                    };
-                    let Some(pid) = parts.iter().position(|p| p.name == part) else {
-                        let hint = suggest(&part, part_names.iter().copied())
-                            .map(|c| format!(" (did you mean `{c}`?)"))
-                            .unwrap_or_default();
-                        return Err(x.error(format!(
-                            "position names part type `{part}`, which is not defined{hint}; part types: {}",
-                            part_names.join(", ")
-                        )));
-                    };
-                    let c = counts.entry(part.clone()).or_insert(0);
-                    *c += 1;
-                    let name = pname.unwrap_or_else(|| if *c == 1 { part.clone() } else { format!("{part}#{c}") });
-                    Ok(Position { name, part: pid })
-                })?;
-                if ps.is_empty() {
-                    return Err(v.error("a unit type needs at least one position"));
-                }
-                for (i, p) in ps.iter().enumerate() {
-                    if ps[..i].iter().any(|q: &Position| q.name == p.name) {
-                        return Err(v.error(format!(
-                            "two positions are named `{}`; position names must differ",
-                            p.name
-                        )));
-                    }
-                }
-                if ps.len() > 65_000 {
-                    return Err(v.error("at most 65 000 positions per unit type"));
-                }
-                Ok(ps)
+/// `[units.NAME]`: unit types as lists of positions of part types.
+fn read_unit_types(root: &Tbl<'_, '_>, parts: &[PartType]) -> Result<Vec<UnitType>, ScenarioError> {
+    root.need(
+        "units",
+        "at least one [units.NAME] table with positions",
+        |v| {
+            let t = v.table()?;
+            let out = t.entries(|key, v| {
+                check_name(&v, key)?;
+                let ut = v.table()?;
+                let mut counts = std::collections::HashMap::<String, usize>::new();
+                let positions = ut.need(
+                    "positions",
+                    "a list of part types, e.g. [\"engine\", \"pump\", \"pump\"]",
+                    |v| {
+                        let ps = each(&v, |x| {
+                            let (pname, part) = if x.is_table() {
+                                let pt = x.table()?;
+                                let n = pt.need("name", "the position's name", |v| {
+                                    v.string().map(str::to_string)
+                                })?;
+                                let p = pt.need("part", "the part type it holds", |v| {
+                                    v.string().map(str::to_string)
+                                })?;
+                                pt.finish(&["name", "part"])?;
+                                (Some(n), p)
+                            } else {
+                                (None, x.string()?.to_string())
+                            };
+                            let pid = part_named(parts, &part, &x, "position")?;
+                            let c = counts.entry(part.clone()).or_insert(0);
+                            *c += 1;
+                            let name = pname.unwrap_or_else(|| {
+                                if *c == 1 {
+                                    part.clone()
+                                } else {
+                                    format!("{part}#{c}")
+                                }
+                            });
+                            Ok(Position { name, part: pid })
+                        })?;
+                        if ps.is_empty() {
+                            return Err(v.error("a unit type needs at least one position"));
+                        }
+                        for (i, p) in ps.iter().enumerate() {
+                            if ps[..i].iter().any(|q: &Position| q.name == p.name) {
+                                return Err(v.error(format!(
+                                    "two positions are named `{}`; position names must differ",
+                                    p.name
+                                )));
+                            }
+                        }
+                        if ps.len() > 65_000 {
+                            return Err(v.error("at most 65 000 positions per unit type"));
+                        }
+                        Ok(ps)
+                    },
+                )?;
+                ut.finish(&["positions"])?;
+                Ok(UnitType {
+                    name: key.to_string(),
+                    positions,
+                })
             })?;
-            ut.finish(&["positions"])?;
-            Ok(UnitType { name: key.to_string(), positions })
-        })?;
-        if out.is_empty() {
-            return Err(v.error("define at least one unit type as [units.NAME]"));
-        }
-        Ok(out)
-    })?;
-    let unit_names: Vec<&str> = unit_types.iter().map(|u| u.name.as_str()).collect();
-    let sites = network::read_sites(root)?;
+            if out.is_empty() {
+                return Err(v.error("define at least one unit type as [units.NAME]"));
+            }
+            Ok(out)
+        },
+    )
+}
 
-    let groups: Vec<FleetGroup> = root.need(
+/// `[[fleet]]`: how many units of each type, and their parts' initial
+/// ages.
+fn read_fleet(
+    root: &Tbl<'_, '_>,
+    parts: &[PartType],
+    unit_types: &[UnitType],
+    sites: &[Site],
+    defaults: &Defaults,
+) -> Result<Vec<FleetGroup>, ScenarioError> {
+    let unit_names: Vec<&str> = unit_types.iter().map(|u| u.name.as_str()).collect();
+    root.need(
         "fleet",
         "one or more [[fleet]] entries with unit and count",
         |v| {
@@ -1160,9 +1345,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
                 let unit = t.need("unit", "the unit type", |v| {
                     let s = v.string()?;
                     unit_types.iter().position(|u| u.name == s).ok_or_else(|| {
-                        let hint = suggest(s, unit_names.iter().copied())
-                            .map(|c| format!(" (did you mean `{c}`?)"))
-                            .unwrap_or_default();
+                        let hint = did_you_mean(s, unit_names.iter().copied());
                         v.error(format!(
                             "unit type `{s}` is not defined{hint}; unit types: {}",
                             unit_names.join(", ")
@@ -1172,18 +1355,13 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
                 let count = t.need("count", "how many units of this type (1 or more)", |v| {
                     v.integer(1, 1_000_000)
                 })? as usize;
-                let site = network::read_group_site(&t, &sites)?;
+                let site = network::read_group_site(&t, sites)?;
                 let age = t.with("initial_age", read_age)?;
                 let mut by_part: Vec<(usize, AgeSpec)> = Vec::new();
                 t.with("initial_age_by_part", |v| {
                     let bt = v.table()?;
                     bt.entries(|key, v| {
-                        let Some(pid) = parts.iter().position(|p| p.name == key) else {
-                            return Err(v.error(format!(
-                                "part type `{key}` is not defined; part types: {}",
-                                part_names.join(", ")
-                            )));
-                        };
+                        let pid = part_named(parts, key, &v, "initial_age_by_part")?;
                         by_part.push((pid, read_age(v)?));
                         Ok(())
                     })?;
@@ -1203,7 +1381,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
                         .find(|(p, _)| *p == pid)
                         .map(|(_, s)| s)
                         .or(age.as_ref())
-                        .or(age_default.as_ref())
+                        .or(defaults.initial_age.as_ref())
                         .unwrap_or(&AgeSpec::New);
                     if let AgeSpec::List(l) = spec
                         && l.len() != count
@@ -1233,61 +1411,27 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
             }
             Ok(gs)
         },
-    )?;
+    )
+}
 
-    let mut layout = network::Layout::new(&sites, false);
-    network::check_sites_used(root, &layout, &groups)?;
-    let depot = network::read_depot(root, &layout)?;
-    layout.depot = depot.is_some();
-    let lateral = network::read_lateral(root, &layout)?;
-    let ready = network::read_ready(root, &layout, &groups)?;
-    let policies = root
+/// Where a value stands in the file: byte offsets.
+type Span = (usize, usize);
+
+/// `[policies.NAME]`: the named policies, each with its place for
+/// messages.
+fn read_policies(
+    root: &Tbl<'_, '_>,
+    parts: &[PartType],
+    layout: &network::Layout,
+) -> Result<Vec<(Policy, Span)>, ScenarioError> {
+    Ok(root
         .with("policies", |v| {
             let t = v.table()?;
             t.entries(|key, v| {
                 check_name(&v, key)?;
-                let p = read_policy(key, v, &parts, &layout)?;
+                let p = read_policy(key, v, parts, layout)?;
                 Ok((p, v.span))
             })
         })?
-        .unwrap_or_default();
-    let search = root.with("search", |v| read_search(v, &parts, &layout))?;
-    root.finish(ROOT_KEYS)?;
-
-    let units = Model::flatten_units(&unit_types, &groups);
-    let (ready, target) = match ready {
-        Some((r, share)) => (Some(r), share),
-        // Without [ready_units] the availability target was required.
-        None => (None, sc_target.unwrap_or(1.0)),
-    };
-    let model = Model {
-        name,
-        description,
-        horizon,
-        downtime_penalty,
-        target,
-        availability_target: sc_target,
-        ready,
-        seed,
-        trials,
-        parts,
-        unit_types,
-        groups,
-        units,
-        sites,
-        depot,
-        lateral,
-        policies: policies.iter().map(|(p, _)| p.clone()).collect(),
-        search,
-        currency,
-        parameter_uncertainty,
-    };
-    for (p, span) in &policies {
-        if let Some(msg) = model.safety_violation(p) {
-            return Err(root
-                .src
-                .error(&format!("policies.{}", p.name), span.0..span.1, msg));
-        }
-    }
-    Ok(model)
+        .unwrap_or_default())
 }

@@ -15,7 +15,7 @@ use crate::dist::LeadTime;
 use crate::model::{Depot, FleetGroup, Lateral, ReadyTarget, Repair, Site, Stock, StockRanges};
 
 use super::tree::{Tbl, Val};
-use super::{ScenarioError, check_name, read_lead, suggest};
+use super::{ScenarioError, check_name, did_you_mean, read_lead};
 
 /// The name of the one site of a scenario without `[sites]`.
 pub(super) const IMPLICIT_SITE: &str = "fleet";
@@ -52,9 +52,7 @@ impl Layout {
 
     fn unknown_key(&self, v: &Val<'_, '_>, key: &str, what: &str) -> ScenarioError {
         let keys = self.keys();
-        let hint = suggest(key, keys.iter().copied())
-            .map(|c| format!(" (did you mean `{c}`?)"))
-            .unwrap_or_default();
+        let hint = did_you_mean(key, keys.iter().copied());
         v.error(format!(
             "{what} for site `{key}`, which the scenario does not define{hint}; allowed keys: {}",
             keys.join(", ")
@@ -108,9 +106,7 @@ pub(super) fn read_group_site(t: &Tbl<'_, '_>, sites: &[Site]) -> Result<usize, 
             )));
         }
         names.iter().position(|n| *n == s).ok_or_else(|| {
-            let hint = suggest(s, names.iter().copied())
-                .map(|c| format!(" (did you mean `{c}`?)"))
-                .unwrap_or_default();
+            let hint = did_you_mean(s, names.iter().copied());
             v.error(format!(
                 "site `{s}` is not defined{hint}; sites: {}",
                 names.join(", ")
@@ -344,9 +340,7 @@ pub(super) fn read_ready(
                 let mut per: Vec<Option<u32>> = vec![None; layout.names.len()];
                 tt.entries(|key, v| {
                     let Some(i) = layout.site(key) else {
-                        let hint = suggest(key, layout.names.iter().map(String::as_str))
-                            .map(|c| format!(" (did you mean `{c}`?)"))
-                            .unwrap_or_default();
+                        let hint = did_you_mean(key, layout.names.iter().map(String::as_str));
                         return Err(v.error(format!(
                             "a ready count for site `{key}`, which the scenario does not define{hint}; sites: {}",
                             layout.names.join(", ")

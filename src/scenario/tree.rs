@@ -13,14 +13,14 @@ use toml::de::{DeArray, DeTable, DeValue};
 
 use super::ScenarioError;
 
-/// The source being read.
+/// The text being read and the file it is reported under.
 #[derive(Debug, Clone, Copy)]
-pub struct Source<'s> {
+pub struct Text<'s> {
     pub file: &'s str,
     pub text: &'s str,
 }
 
-impl<'s> Source<'s> {
+impl<'s> Text<'s> {
     /// Line and column (1-based) of a byte offset.
     pub fn line_col(&self, offset: usize) -> (usize, usize) {
         let offset = offset.min(self.text.len());
@@ -51,7 +51,7 @@ impl<'s> Source<'s> {
 /// One value with its path and place.
 #[derive(Debug, Clone, Copy)]
 pub struct Val<'a, 's> {
-    pub src: Source<'s>,
+    pub src: Text<'s>,
     pub path: &'a str,
     pub span: (usize, usize),
     pub value: &'a DeValue<'s>,
@@ -175,15 +175,21 @@ impl<'a, 's> Val<'a, 's> {
         }
     }
 
+    /// `true` or `false`.
+    pub fn boolean(&self) -> Result<bool, ScenarioError> {
+        match self.value {
+            DeValue::Boolean(b) => Ok(*b),
+            _ => Err(self.error("expected true or false")),
+        }
+    }
+
     /// A string from a fixed set.
     pub fn one_of<'c>(&self, allowed: &[&'c str]) -> Result<&'c str, ScenarioError> {
         let s = self.string()?;
         if let Some(found) = allowed.iter().find(|a| **a == s) {
             Ok(found)
         } else {
-            let hint = suggest(s, allowed.iter().copied())
-                .map(|c| format!(" (did you mean `{c}`?)"))
-                .unwrap_or_default();
+            let hint = did_you_mean(s, allowed.iter().copied());
             Err(self.error(format!(
                 "`{s}` is not allowed here{hint}; allowed: {}",
                 allowed.join(", ")
@@ -242,7 +248,7 @@ pub fn each<'a, 's, T>(
 /// A table being read; remembers which keys were read.
 #[derive(Debug)]
 pub struct Tbl<'a, 's> {
-    pub src: Source<'s>,
+    pub src: Text<'s>,
     pub path: String,
     span: (usize, usize),
     map: &'a DeTable<'s>,
@@ -273,9 +279,17 @@ pub fn suggest<'c>(word: &str, candidates: impl Iterator<Item = &'c str>) -> Opt
         .map(|(_, c)| c)
 }
 
+/// The hint " (did you mean `NAME`?)" for the closest candidate within a small
+/// edit distance (see [`suggest`]), or nothing.
+pub fn did_you_mean<'c>(word: &str, candidates: impl Iterator<Item = &'c str>) -> String {
+    suggest(word, candidates)
+        .map(|c| format!(" (did you mean `{c}`?)"))
+        .unwrap_or_default()
+}
+
 impl<'a, 's> Tbl<'a, 's> {
     /// The root table of a document.
-    pub fn root(src: Source<'s>, doc: &'a Spanned<DeTable<'s>>) -> Self {
+    pub fn root(src: Text<'s>, doc: &'a Spanned<DeTable<'s>>) -> Self {
         let span = doc.span();
         Tbl {
             src,
@@ -391,9 +405,7 @@ impl<'a, 's> Tbl<'a, 's> {
         for (k, _) in items {
             let key: &str = k.get_ref().as_ref();
             if !used.iter().any(|u| u == key) {
-                let hint = suggest(key, known.iter().copied())
-                    .map(|c| format!(" (did you mean `{c}`?)"))
-                    .unwrap_or_default();
+                let hint = did_you_mean(key, known.iter().copied());
                 let span = k.span();
                 return Err(self.src.error(
                     &self.child_path(key),

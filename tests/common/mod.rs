@@ -1,10 +1,35 @@
-//! Shared helpers for the integration tests: build a model from scenario
-//! text, run trials, and compare figures within their standard errors.
+//! Shared helpers for the integration tests (and the benches, which
+//! include this file by path): the shipped scenarios, a model from
+//! scenario text, trials run, figures compared within their standard
+//! errors, the `wearout` binary run (and `check` refusing a scenario), and
+//! a fresh temporary folder.
 #![allow(dead_code)]
+
+use std::path::PathBuf;
+use std::process::Command;
+use std::time::Instant;
 
 use wearout::model::Model;
 use wearout::run::{Quiet, evaluate};
 use wearout::summary::Summary;
+
+/// The path of a shipped scenario: `scenarios/NAME.toml`.
+pub fn scenario_path(name: &str) -> String {
+    format!("{}/scenarios/{name}.toml", env!("CARGO_MANIFEST_DIR"))
+}
+
+/// The text of a shipped scenario.
+pub fn scenario_text(name: &str) -> String {
+    std::fs::read_to_string(scenario_path(name)).expect("shipped scenario")
+}
+
+/// A shipped scenario, loaded from its file as the command line does.
+pub fn load(name: &str) -> Model {
+    match wearout::scenario::load(std::path::Path::new(&scenario_path(name))) {
+        Ok(loaded) => loaded.model,
+        Err(e) => panic!("scenario {name} does not load: {e}"),
+    }
+}
 
 /// Parse scenario text, panicking with the error (tests only).
 pub fn model(text: &str) -> Model {
@@ -91,4 +116,93 @@ p = {policy}
             policy = self.policy,
         )
     }
+}
+
+/// The `wearout` binary as a command: no backtraces, and no progress bar
+/// (`CI` set).
+pub fn wearout() -> Command {
+    let mut c = Command::new(env!("CARGO_BIN_EXE_wearout"));
+    c.env_remove("RUST_BACKTRACE").env("CI", "1");
+    c
+}
+
+/// What a finished run of the binary gave.
+pub struct Ran {
+    /// The exit status (`None` when a signal ended the process).
+    pub code: Option<i32>,
+    pub stdout: String,
+    pub stderr: String,
+    /// Wall time of the run.
+    pub seconds: f64,
+}
+
+/// Run the binary with `args` to its end.
+pub fn run_wearout(args: &[&str]) -> Ran {
+    let t = Instant::now();
+    let out = wearout().args(args).output().expect("wearout runs");
+    Ran {
+        code: out.status.code(),
+        stdout: String::from_utf8_lossy(&out.stdout).into_owned(),
+        stderr: String::from_utf8_lossy(&out.stderr).into_owned(),
+        seconds: t.elapsed().as_secs_f64(),
+    }
+}
+
+/// A fresh, empty temporary folder named after the test and this process.
+pub fn temp_dir(tag: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("wearout-{tag}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).expect("temp dir");
+    d
+}
+
+/// Write scenario text to `TAG.toml` in this process's temporary folder.
+pub fn temp_scenario(tag: &str, text: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("wearout-scenarios-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    let p = dir.join(format!("{tag}.toml"));
+    std::fs::write(&p, text).expect("write temp scenario");
+    p
+}
+
+/// `wearout check` on scenario text, written to `TAG.toml`: its exit
+/// status and what it printed on stderr.
+pub fn check_text(tag: &str, text: &str) -> (Option<i32>, String) {
+    let p = temp_scenario(tag, text);
+    let ran = run_wearout(&["check", p.to_str().expect("a UTF-8 path")]);
+    (ran.code, ran.stderr)
+}
+
+/// `wearout check` refuses scenario text as it must refuse a user's
+/// mistake: exit status 2, no panic, one message naming the file `TAG.toml`
+/// and holding every needle. Returns the message.
+pub fn check_refuses(tag: &str, text: &str, needles: &[&str]) -> String {
+    let (code, err) = check_text(tag, text);
+    assert_eq!(code, Some(2), "{tag}: exit code {code:?}, stderr: {err}");
+    assert!(
+        !err.contains("panicked") && !err.contains("backtrace"),
+        "{tag}: {err}"
+    );
+    assert!(
+        err.contains(&format!("{tag}.toml")),
+        "{tag}: no file name in {err}"
+    );
+    for n in needles {
+        assert!(err.contains(n), "{tag}: `{n}` not in: {err}");
+    }
+    assert_eq!(
+        err.trim().lines().count(),
+        1,
+        "{tag}: one message, got {err}"
+    );
+    err
+}
+
+/// The peak resident memory of this process so far, in MB (Linux
+/// `VmHWM`), if known.
+pub fn peak_rss_mb() -> Option<f64> {
+    let s = std::fs::read_to_string("/proc/self/status").ok()?;
+    let line = s.lines().find(|l| l.starts_with("VmHWM:"))?;
+    let kb: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kb / 1024.0)
 }
