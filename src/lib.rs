@@ -4,13 +4,13 @@
 //! The modules follow the data's path; see ARCHITECTURE.md for the map.
 
 pub mod analytic;
-pub mod averages;
 pub mod dist;
 pub mod echelon;
 pub mod estimate;
 pub mod files;
 pub mod fit;
 pub mod frontier;
+pub mod mean_life;
 pub mod model;
 pub mod outcome;
 pub mod recost;

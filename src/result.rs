@@ -3,14 +3,14 @@
 //! Owns: the serialisable form of an evaluation and of a frontier, built
 //! from a [`Summary`] and a `FrontierResult`; domain types stay free of
 //! serde, this layer converts (the small value types of `summary` and
-//! `averages` it embeds as they are derive it themselves).
-//! May use: `summary`, `averages`, `model`, `frontier`, `recost`, `serde`.
+//! `mean_life` it embeds as they are derive it themselves).
+//! May use: `summary`, `mean_life`, `model`, `frontier`, `recost`, `serde`.
 
 use serde::Serialize;
 
 use std::collections::BTreeMap;
 
-use crate::averages::AveragesPlan;
+use crate::mean_life::MeanLifePlan;
 use crate::model::{Measure, Model, Policy};
 use crate::summary::{AvailabilityFigures, Chance, MeanSe, Summary};
 
@@ -159,9 +159,9 @@ pub struct PartCostJson {
     pub transport: f64,
 }
 
-/// Plan-on-averages figures beside the simulated ones.
+/// Mean-life plan figures beside the simulated ones.
 #[derive(Debug, Clone, Serialize, PartialEq)]
-pub struct AveragesJson {
+pub struct MeanLifeJson {
     pub availability: f64,
     /// Total with the downtime penalty, without capital.
     pub cost: f64,
@@ -202,7 +202,7 @@ pub struct EvaluateJson {
     pub initial_stock_capital: f64,
     pub counts: CountsJson,
     pub down_hours: DownJson,
-    pub plan_on_averages: AveragesJson,
+    pub mean_life_plan: MeanLifeJson,
     pub per_part: Vec<PartJson>,
 }
 
@@ -211,8 +211,8 @@ fn ms(m: &crate::summary::Moments) -> MeanSe {
 }
 
 impl EvaluateJson {
-    /// Build from a summary and its plan-on-averages figures.
-    pub fn new(model: &Model, s: &Summary, plan: &AveragesPlan) -> Self {
+    /// Build from a summary and its mean-life plan figures.
+    pub fn new(model: &Model, s: &Summary, plan: &MeanLifePlan) -> Self {
         let a = &s.acc;
         let policy: &Policy = &s.policy;
         let spend = MeanSe {
@@ -285,7 +285,7 @@ impl EvaluateJson {
                 unplanned_work: ms(&a.down_unplanned),
                 planned_work: ms(&a.down_planned),
             },
-            plan_on_averages: AveragesJson {
+            mean_life_plan: MeanLifeJson {
                 availability: plan.availability,
                 cost: plan.cost,
                 spend: plan.spend + s.initial_stock_capital,

@@ -493,7 +493,7 @@ fn exercise(model: &Model, text: &str) {
         text: text.to_string(),
     };
     for policy in model.policies.iter().take(3) {
-        let plan = wearout::averages::plan_on_averages(model, policy);
+        let plan = wearout::mean_life::mean_life_plan(model, policy);
         let est = wearout::estimate::evaluate(
             model,
             std::slice::from_ref(policy),

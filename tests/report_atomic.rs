@@ -13,7 +13,7 @@ use std::path::Path;
 
 use common::{temp_dir, wearout};
 
-use wearout::averages::plan_on_averages;
+use wearout::mean_life::mean_life_plan;
 use wearout::model::Model;
 use wearout::report::{MANIFEST, Report, evaluate_report};
 use wearout::result::EvaluateJson;
@@ -27,7 +27,7 @@ fn report(seed: u64, n: u64) -> Report {
     model.seed = seed;
     let policy = model.policies[0].clone();
     let summary = evaluate(&model, &policy, 0..n, model.target, &Quiet).expect("runs");
-    let plan = plan_on_averages(&model, &policy);
+    let plan = mean_life_plan(&model, &policy);
     let json = EvaluateJson::new(&model, &summary, &plan);
     evaluate_report(&model, &summary, &json, &Quiet).expect("renders")
 }

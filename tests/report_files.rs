@@ -218,8 +218,8 @@ fn policies_csv_matches_the_result_and_the_json() {
         );
         let spend = parts + f(row, "initial_stock_capital");
         assert!((spend - pj.spend).abs() <= 1e-6 * spend, "{row:?}");
-        // The plan on averages, recomputed here.
-        let plan = wearout::averages::plan_on_averages(model, &c.policy);
+        // The mean-life plan, recomputed here.
+        let plan = wearout::mean_life::mean_life_plan(model, &c.policy);
         assert_eq!(f(row, "plan_availability"), plan.availability);
         assert_eq!(row["plan_meets_target"], plan.meets_target.to_string());
     }
@@ -345,7 +345,7 @@ fn html_is_self_contained_and_links_only_its_own_files() {
     let svgs = [
         "frontier",
         "exceedance",
-        "averages",
+        "mean-life",
         "costs",
         "life",
         "stock",
@@ -369,7 +369,7 @@ fn summary_md_names_the_findings() {
         "## In short",
         "## Cheapest policy for each chance level",
         "## What are our chances?",
-        "## Where the plan on averages goes wrong",
+        "## Where the mean-life plan goes wrong",
         "## What the figures assume",
         "## Cautions",
     ] {

@@ -106,7 +106,7 @@ fn named(v: Vec<Vec<u8>>) -> Vec<(String, Vec<u8>)> {
 }
 
 fn evaluate_json(model: &Model, s: &wearout::summary::Summary) -> String {
-    let plan = wearout::averages::plan_on_averages(model, &s.policy);
+    let plan = wearout::mean_life::mean_life_plan(model, &s.policy);
     serde_json::to_string_pretty(&EvaluateJson::new(model, s, &plan)).expect("json")
 }
 

@@ -32,8 +32,8 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
-use wearout::averages::plan_on_averages;
 use wearout::frontier::FrontierResult;
+use wearout::mean_life::mean_life_plan;
 use wearout::model::Model;
 use wearout::report::{Report, ReportError};
 use wearout::result::{EvaluateJson, FrontierJson};
@@ -44,7 +44,7 @@ use wearout::summary::Summary;
 pub use error::CliError;
 
 /// wearout: choose replacement intervals and spares stock for a fleet by
-/// the chance of meeting an availability target, not by averages.
+/// the chance of meeting an availability target, not by mean figures.
 #[derive(Debug, Parser)]
 #[command(name = "wearout", version, about, long_about = None)]
 pub struct Cli {
@@ -368,7 +368,7 @@ fn show(
 ) -> Result<(), CliError> {
     match finished {
         Finished::Evaluate { model, summary } => {
-            let plan = plan_on_averages(model, &summary.policy);
+            let plan = mean_life_plan(model, &summary.policy);
             let j = EvaluateJson::new(model, summary, &plan);
             print(out, json, &j, || render::evaluate(model, &j))?;
             write_report(report, &model.name, |bar| {

@@ -7,8 +7,8 @@
 //! rule names from `Rule::short`.
 //! May use: the library's result types, `wearout::text`.
 
-use wearout::averages::plan_on_averages;
 use wearout::frontier::FrontierResult;
+use wearout::mean_life::mean_life_plan;
 use wearout::model::Model;
 use wearout::recost::NoiseFlags;
 use wearout::result::{EvaluateJson, FrontierJson, cost_measure_label};
@@ -166,7 +166,7 @@ pub fn check(loaded: &Loaded) -> String {
         ]);
     }
     s.push_str(&table(&rows));
-    s.push_str("\nPolicies, with what a plan on averages predicts\n");
+    s.push_str("\nPolicies, with what a mean-life plan predicts\n");
     let mut rows = vec![vec![
         "policy".to_string(),
         "availability".into(),
@@ -174,7 +174,7 @@ pub fn check(loaded: &Loaded) -> String {
         "rules and stock".into(),
     ]];
     for p in &model.policies {
-        let plan = plan_on_averages(model, p);
+        let plan = mean_life_plan(model, p);
         rows.push(vec![
             p.name.clone(),
             pct2(plan.availability),
@@ -186,9 +186,9 @@ pub fn check(loaded: &Loaded) -> String {
     if model.has_rotables()
         && let Some(p) = model.policies.first()
     {
-        let plan = plan_on_averages(model, p);
+        let plan = mean_life_plan(model, p);
         s.push_str(&format!(
-            "\nRotable pipelines by the plan on averages (policy `{}`: removals x mean return time{})\n",
+            "\nRotable pipelines by the mean-life plan (policy `{}`: removals x mean return time{})\n",
             p.name,
             if model.depot.is_some() {
                 " + transport"
@@ -222,7 +222,7 @@ pub fn check(loaded: &Loaded) -> String {
             num(sp.size() as f64, 0)
         ));
     }
-    s.push_str("\nA plan on averages has no chances: it treats every life and lead time as exactly its mean. `wearout evaluate` shows the spread.\n");
+    s.push_str("\nA mean-life plan has no chances: it treats every life and lead time as exactly its mean. `wearout evaluate` shows the spread.\n");
     s
 }
 
@@ -244,7 +244,7 @@ pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
             ""
         }
     ));
-    let verdict = if j.plan_on_averages.meets_target {
+    let verdict = if j.mean_life_plan.meets_target {
         "target met for certain"
     } else {
         "target missed for certain"
@@ -301,10 +301,10 @@ pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
             spread(f),
             chance_row(r.share, &r.chance),
             vec![
-                "plan on averages says".into(),
+                "mean-life plan says".into(),
                 format!(
                     "availability {} ({verdict})",
-                    pct2(j.plan_on_averages.availability)
+                    pct2(j.mean_life_plan.availability)
                 ),
             ],
         ]));
@@ -319,8 +319,8 @@ pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
     if j.readiness.is_none() {
         rows.push(chance_row(j.target, &j.chance));
         rows.push(vec![
-            "plan on averages says".into(),
-            format!("{} ({verdict})", pct2(j.plan_on_averages.availability)),
+            "mean-life plan says".into(),
+            format!("{} ({verdict})", pct2(j.mean_life_plan.availability)),
         ]);
     } else if let (Some(t), Some(c)) = (j.availability_target, &j.availability_chance) {
         rows.push(chance_row(t, c));
@@ -394,8 +394,8 @@ pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
         row("downtime penalty", &c.downtime),
         row("total", &c.total),
         vec![
-            "plan on averages: total".into(),
-            money(j.plan_on_averages.cost),
+            "mean-life plan: total".into(),
+            money(j.mean_life_plan.cost),
             String::new(),
         ],
         vec![

@@ -6,7 +6,7 @@
 //!
 //! Owns: turning a finished result into those files, and writing them so
 //! that a run failing half-way leaves the previous report intact.
-//! May use: `result`, `summary`, `frontier`, `recost`, `averages`, `model`,
+//! May use: `result`, `summary`, `frontier`, `recost`, `mean_life`, `model`,
 //! `dist`, `analytic` (Poisson pipeline), `text`, `files` (the staging
 //! folder), `run` (its progress observer), `plotters`, `serde_json`; and
 //! only in `tables`, `csv` and `sim` to re-run the reported trials for
@@ -242,10 +242,10 @@ fn figures(v: &View<'_>) -> Result<Vec<doc::Figure>, ReportError> {
         "Falling curves of the chance of reaching at least each availability level, one per policy, with the target marked.".into(),
     );
     add(
-        "averages.svg",
-        plots::averages(v)?,
-        "The plan on averages (diamonds) beside the spread of simulated futures (lines: 5-95 %, bars: 25-75 %, dots: means).".into(),
-        "For each policy, the simulated range of availability and cost, with the plan-on-averages figure marked beside it.".into(),
+        "mean-life.svg",
+        plots::mean_life(v)?,
+        "The mean-life plan (diamonds) beside the spread of simulated futures (lines: 5-95 %, bars: 25-75 %, dots: means).".into(),
+        "For each policy, the simulated range of availability and cost, with the mean-life plan's figure marked beside it.".into(),
     );
     add(
         "costs.svg",

@@ -3,13 +3,13 @@
 //! them the figures single out, and the number formats people read.
 //!
 //! Owns: the report's view of a result and its formatting helpers.
-//! May use: `model`, `summary`, `recost`, `averages`, `analytic`, `dist`,
+//! May use: `model`, `summary`, `recost`, `mean_life`, `analytic`, `dist`,
 //! `text`.
 //! No simulation, no I/O.
 
 use crate::analytic::PoissonPipeline;
-use crate::averages::{AveragesPlan, plan_on_averages};
 use crate::dist::LeadTime;
+use crate::mean_life::{MeanLifePlan, mean_life_plan};
 use crate::model::{CostBasis, CostMeasure, Model, Policy, Rule};
 use crate::recost::NoiseFlags;
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
@@ -32,7 +32,7 @@ pub struct PolicyView<'a> {
     /// The cost measure and its standard error.
     pub cost: MeanSe,
     pub chance: Chance,
-    pub plan: AveragesPlan,
+    pub plan: MeanLifePlan,
     pub noise: Option<NoiseFlags>,
 }
 
@@ -46,7 +46,7 @@ impl PolicyView<'_> {
         self.summary.trial_costs(basis)
     }
 
-    /// The plan-on-averages cost on the measure's basis, comparable with
+    /// The mean-life plan's cost on the measure's basis, comparable with
     /// the simulated mean (capital in spend).
     pub fn plan_cost(&self, basis: CostBasis) -> f64 {
         match basis {
@@ -115,7 +115,7 @@ pub struct View<'a> {
     pub policies: Vec<PolicyView<'a>>,
     /// Indices into `policies` of those singled out, cheapest first.
     pub chosen: Vec<usize>,
-    /// The cheapest policy the plan on averages says meets the target.
+    /// The cheapest policy the mean-life plan says meets the target.
     pub planner_pick: Option<usize>,
     /// Every policy simulated in the search (frontier runs only), on the
     /// search trials.
@@ -141,7 +141,7 @@ impl<'a> View<'a> {
                 summary,
                 cost,
                 chance,
-                plan: plan_on_averages(model, policy),
+                plan: mean_life_plan(model, policy),
                 noise,
             })
             .collect();
@@ -188,8 +188,8 @@ fn cheapest_at(policies: &[PolicyView<'_>], level: f64) -> Option<usize> {
 }
 
 /// The policies the figures single out: the cheapest reaching each of the
-/// chosen chance levels, the one with the best chance, and the plan on
-/// averages' pick; at most [`MAX_CHOSEN`], cheapest first.
+/// chosen chance levels, the one with the best chance, and the mean-life
+/// plan's pick; at most [`MAX_CHOSEN`], cheapest first.
 fn choose(policies: &[PolicyView<'_>], planner_pick: Option<usize>) -> Vec<usize> {
     if policies.is_empty() {
         return Vec::new();

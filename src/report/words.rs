@@ -1,6 +1,6 @@
 //! The report's words, generated from the numbers: the short findings,
 //! the cheapest policy for each chance level, what each step up the
-//! frontier costs and why, where the plan on averages is wrong, what the
+//! frontier costs and why, where the mean-life plan is wrong, what the
 //! figures assume and the cautions.
 //!
 //! Owns: every sentence and table of `index.html` and `summary.md`.
@@ -313,18 +313,18 @@ fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
             ]);
         }
     }
-    items.push(averages_headline(v));
+    items.push(mean_life_headline(v));
     items
 }
 
-/// The headline of where the plan on averages goes wrong.
-fn averages_headline(v: &View<'_>) -> Vec<Span> {
+/// The headline of where the mean-life plan goes wrong.
+fn mean_life_headline(v: &View<'_>) -> Vec<Span> {
     let target = pct_trim(v.target, 1);
     match (v.kind, v.planner_pick) {
         (Kind::Frontier, Some(i)) => {
             let p = &v.policies[i];
             let mut s = vec![
-                t("Planning on averages would pick "),
+                t("The mean-life plan would pick "),
                 c(p.name()),
                 t(format!(
                     ", the cheapest policy it says meets {target} (it predicts {}); simulated, ",
@@ -339,7 +339,7 @@ fn averages_headline(v: &View<'_>) -> Vec<Span> {
                 )),
             ];
             if p.chance.value < 0.5 {
-                s.push(t(" The plan on averages is wrong about it."));
+                s.push(t(" The mean-life plan is wrong about it."));
             }
             s
         }
@@ -347,7 +347,7 @@ fn averages_headline(v: &View<'_>) -> Vec<Span> {
             let best = &v.policies[v.policies.len() - 1];
             vec![
                 t(format!(
-                    "The plan on averages says no frontier policy meets {target}; simulated, "
+                    "The mean-life plan says no frontier policy meets {target}; simulated, "
                 )),
                 c(best.name()),
                 t(format!(
@@ -360,7 +360,7 @@ fn averages_headline(v: &View<'_>) -> Vec<Span> {
             let p = &v.policies[0];
             vec![
                 t(format!(
-                    "The plan on averages predicts {} availability and calls the target {} for certain; the simulated chance is ",
+                    "The mean-life plan predicts {} availability and calls the target {} for certain; the simulated chance is ",
                     pct1(p.plan.availability),
                     if p.plan.meets_target { "met" } else { "missed" }
                 )),
@@ -522,11 +522,11 @@ fn chance_table(v: &View<'_>) -> Block {
     Block::Table { head, align, rows }
 }
 
-/// Where the plan on averages goes wrong, and by how much.
-fn averages_words(v: &View<'_>) -> Vec<Vec<Span>> {
+/// Where the mean-life plan goes wrong, and by how much.
+fn mean_life_words(v: &View<'_>) -> Vec<Vec<Span>> {
     let target = pct_trim(v.target, 1);
     let basis = v.measure.basis;
-    let mut items = vec![averages_headline(v)];
+    let mut items = vec![mean_life_headline(v)];
     let n = v.policies.len();
     let false_met: Vec<&PolicyView<'_>> = v
         .policies
@@ -604,12 +604,12 @@ fn averages_words(v: &View<'_>) -> Vec<Vec<Span>> {
         }
     }
     items.push(vec![t(
-        "Why: a unit stops at the earliest of its parts' failures, spares are asked for in lumps that a stock sized for the average runs out under, and lead times have long tails. The plan on averages sees none of this; it has one availability per policy and so only \"met\" or \"missed\".",
+        "Why: a unit stops at the earliest of its parts' failures, spares are asked for in lumps that a stock sized for the average runs out under, and lead times have long tails. The mean-life plan sees none of this; it has one availability per policy and so only \"met\" or \"missed\".",
     )]);
     items
 }
 
-/// How far the plan on averages is off a simulated figure, over the
+/// How far the mean-life plan is off a simulated figure, over the
 /// policies: gaps from `lo` to `hi` (plan minus simulation) in `unit`
 /// (`points` or `%` of the simulated figure).
 fn gap_words(lo: f64, hi: f64, n: usize, unit: &str, what: &str) -> Option<String> {
@@ -817,7 +817,7 @@ fn all_policies(v: &View<'_>) -> Vec<Block> {
             "chance [95 % interval]".into(),
             format!("cost{} ± se", v.cur()),
             "availability P10 / P50 / P90".into(),
-            "plan on averages".into(),
+            "mean-life plan".into(),
             "against the row above".into(),
         ],
         align: vec![
@@ -950,7 +950,7 @@ fn files(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
         vec![
             Span::File("policies.csv".into()),
             t(
-                ": one row per reported policy with every figure quoted here, and the plan-on-averages figures.",
+                ": one row per reported policy with every figure quoted here, and the mean-life plan's figures.",
             ),
         ],
         vec![
@@ -1046,11 +1046,11 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
     doc.push(chance_table(v));
     doc.push(Block::Heading(
         2,
-        "Where the plan on averages goes wrong".into(),
-        "averages".into(),
+        "Where the mean-life plan goes wrong".into(),
+        "mean-life".into(),
     ));
-    doc.extend(fig("averages.svg"));
-    doc.push(Block::Bullets(averages_words(v)));
+    doc.extend(fig("mean-life.svg"));
+    doc.push(Block::Bullets(mean_life_words(v)));
     doc.push(Block::Heading(
         2,
         "Where the money goes".into(),

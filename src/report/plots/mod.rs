@@ -1,6 +1,6 @@
 //! The report's pictures, drawn as SVG with plotters: the frontier, the
 //! availability exceedance curves, the cost breakdown, the life of each
-//! part type, stock against lead-time demand, and the plan on averages
+//! part type, stock against lead-time demand, and the mean-life plan
 //! beside the simulated spread.
 //!
 //! Owns: the figures' layout, colours and wording: one file per figure,
@@ -13,18 +13,18 @@
 //! grey grid; every series also differs by marker or line form, so the
 //! figures survive grey-scale printing.
 
-mod averages;
 mod costs;
 mod exceedance;
 mod frontier;
 mod life;
+mod mean_life;
 mod stock;
 
-pub use averages::averages;
 pub use costs::{components, costs};
 pub use exceedance::exceedance;
 pub use frontier::frontier;
 pub use life::life;
+pub use mean_life::mean_life;
 pub use stock::stock;
 
 use std::collections::HashSet;

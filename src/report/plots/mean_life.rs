@@ -1,10 +1,10 @@
-//! The plan on averages beside the simulated spread.
+//! The mean-life plan beside the simulated spread.
 
 use super::*;
 
-/// The policies the plan-on-averages figure shows: all of them when few,
+/// The policies the mean-life plan's figure shows: all of them when few,
 /// else the chosen ones.
-pub fn averages_rows(v: &View<'_>) -> Vec<usize> {
+pub fn mean_life_rows(v: &View<'_>) -> Vec<usize> {
     if v.policies.len() <= 24 {
         (0..v.policies.len()).collect()
     } else {
@@ -14,11 +14,11 @@ pub fn averages_rows(v: &View<'_>) -> Vec<usize> {
 
 /// Two panels, one row per policy: the simulated spread of availability
 /// and of cost (5-95 % line, 25-75 % bar, mean dot) beside the single
-/// figure the plan on averages gives (diamond).
-pub fn averages(v: &View<'_>) -> Result<String, ReportError> {
-    const FIG: &str = "averages.svg";
+/// figure the mean-life plan gives (diamond).
+pub fn mean_life(v: &View<'_>) -> Result<String, ReportError> {
+    const FIG: &str = "mean-life.svg";
     let basis = v.measure.basis;
-    let idx = averages_rows(v);
+    let idx = mean_life_rows(v);
     let n = idx.len().max(1);
     let height = 130 + (34 * n as u32).max(110);
     let ps = [5.0, 25.0, 75.0, 95.0];
@@ -58,11 +58,7 @@ pub fn averages(v: &View<'_>) -> Result<String, ReportError> {
         CostBasis::TotalWithPenalty => "Total cost",
     };
     draw(FIG, height, |root| {
-        let inner = titled(
-            root,
-            "The plan on averages beside the simulated futures",
-            FIG,
-        )?;
+        let inner = titled(root, "The mean-life plan beside the simulated futures", FIG)?;
         let (body, foot) = inner.split_vertically(height - 70);
         let (left, right) = body.split_horizontally(WIDTH * 54 / 100);
         let sim = PALETTE[0];
@@ -161,7 +157,7 @@ pub fn averages(v: &View<'_>) -> Result<String, ReportError> {
                     Swatch::Block(sim.mix(0.35).to_rgba().into_rgb()),
                 ),
                 ("mean".into(), Swatch::Dot(sim)),
-                ("plan on averages".into(), Swatch::Diamond(plan)),
+                ("mean-life plan".into(), Swatch::Diamond(plan)),
                 (
                     format!("target {}", pct_trim(v.target, 1)),
                     Swatch::Dashed(INK),

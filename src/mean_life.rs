@@ -1,4 +1,4 @@
-//! The plan-on-averages figure: what a plan that replaces every uncertain
+//! The mean-life plan's figure: what a plan that replaces every uncertain
 //! life and lead time by its mean would predict.
 //!
 //! Owns: the deterministic steady-state arithmetic a planner would do in a
@@ -30,7 +30,7 @@
 
 use crate::model::{Model, Money, Policy, Rule};
 
-/// One part type in the plan on averages.
+/// One part type in the mean-life plan.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct PartPlan {
     /// Demands per operating hour of the fleet (removals for a rotable).
@@ -43,9 +43,9 @@ pub struct PartPlan {
     pub pipeline: f64,
 }
 
-/// The plan-on-averages prediction for one policy.
+/// The mean-life plan's prediction for one policy.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
-pub struct AveragesPlan {
+pub struct MeanLifePlan {
     /// Fleet availability predicted.
     pub availability: f64,
     /// Total cost over the horizon with the downtime penalty, without capital
@@ -63,8 +63,8 @@ pub struct AveragesPlan {
     pub parts: Vec<PartPlan>,
 }
 
-/// Compute the plan-on-averages figures of `policy`.
-pub fn plan_on_averages(model: &Model, policy: &Policy) -> AveragesPlan {
+/// Compute the mean-life plan's figures of `policy`.
+pub fn mean_life_plan(model: &Model, policy: &Policy) -> MeanLifePlan {
     let n_parts = model.parts.len();
     // Per part type: cycle length, whether the cycle ends in a failure.
     let mut cycle = vec![0.0; n_parts];
@@ -206,7 +206,7 @@ pub fn plan_on_averages(model: &Model, policy: &Policy) -> AveragesPlan {
             .all(|(&up, &k)| up >= k as f64),
         None => availability >= model.target,
     };
-    AveragesPlan {
+    MeanLifePlan {
         availability,
         cost: spend + penalty,
         spend,
