@@ -168,6 +168,21 @@ impl Arrivals {
     }
 }
 
+/// The least reading key among a unit's positions and its position (the
+/// lower position at equal keys).
+#[inline(always)]
+fn least_key(keys: &[u64]) -> (u64, usize) {
+    let mut best = u64::MAX;
+    let mut best_j = 0;
+    for (j, &k) in keys.iter().enumerate() {
+        if k < best {
+            best = k;
+            best_j = j;
+        }
+    }
+    (best, best_j)
+}
+
 /// A position's next own event as one sortable integer: the earlier of
 /// its failure reading `fail` and its due reading `due`, a failure first
 /// at the same reading. A non-negative `f64`'s bits sort as the number and
@@ -904,14 +919,7 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         }
         // The least key: the earliest reading, a failure before a due at the
         // same reading, then the lower position (strict `<` in index order).
-        let mut best = u64::MAX;
-        let mut best_j = 0;
-        for (j, &k) in self.ws.key_at[first..first + n].iter().enumerate() {
-            if k < best {
-                best = k;
-                best_j = j;
-            }
-        }
+        let (best, best_j) = least_key(&self.ws.key_at[first..first + n]);
         let best_op = f64::from_bits(best >> 1);
         let best_class = if best & 1 == 0 {
             CLASS_FAILURE
@@ -1112,6 +1120,12 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             && unit.waiting_planned == 0
             && done < self.horizon
             && !self.sim.all_events
+            // Another part of this unit due at this very reading starts at
+            // this instant too (see `next_due_at_this_reading`).
+            && (!planned
+                || f64::from_bits(
+                    least_key(&self.ws.key_at[unit.first_pos..unit.first_pos + unit.n_pos]).0 >> 1,
+                ) > unit.op)
         {
             // Nothing can touch this unit until the work ends: its parts do
             // not age while it is down, and no demand of it waits for a
@@ -1194,6 +1208,9 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
                 self.on_failure(u, j, t);
             } else {
                 self.on_due(u, j, t);
+                if self.ws.units[u].holding_down > 0 {
+                    self.next_due_at_this_reading(u, t);
+                }
             }
         }
         if self.check {
@@ -1284,6 +1301,29 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             (up + down - booked).abs() <= 1e-9 * booked.max(1.0),
             "unit-hours: up {up} + down {down} != {booked}"
         );
+    }
+
+    /// After a due has stopped unit `u`: another of its parts due at the
+    /// same reading is handled at this same instant (replacements on one
+    /// unit run in parallel, MODEL.md), not when the unit is up again.
+    /// Only a due shares a reading with another due (block grids, parts
+    /// fitted together, parts overdue at time 0); lives come from
+    /// continuous distributions, so a failure shares its reading with
+    /// nothing.
+    fn next_due_at_this_reading(&mut self, u: usize, now: Hours) {
+        let unit = &self.ws.units[u];
+        let (key, j) = least_key(&self.ws.key_at[unit.first_pos..unit.first_pos + unit.n_pos]);
+        if f64::from_bits(key >> 1) <= unit.op && now < self.horizon {
+            let class = if key & 1 == 0 {
+                CLASS_FAILURE
+            } else {
+                CLASS_DUE
+            };
+            let unit = &mut self.ws.units[u];
+            unit.next_pos = j;
+            unit.next_op = unit.op;
+            self.ws.tourney.set(u, now, class);
+        }
     }
 
     fn on_failure(&mut self, u: usize, j: usize, now: Hours) {

@@ -332,3 +332,41 @@ fn base_stock_matches_palm() {
         );
     }
 }
+
+/// Parts of one unit due at the same reading are replaced together, not
+/// one after the other: "Replacements on different positions of one unit
+/// run in parallel" (MODEL.md, Conventions; the reference model of this
+/// project). Two positions under block replacement every 100 h share their
+/// grid; a planned replacement takes 10 h; lives are Weibull with a scale
+/// of 10^9 h, so no part fails within the 1 000 h horizon (the chance is
+/// about 10^-18 per part). Parts age only while the unit is up, so the
+/// k-th grid point falls at 100 k + 10 (k - 1) h: nine grid points before
+/// 1 000 h, 10 h down at each, 90 h in all and 18 planned replacements per
+/// unit (worked by hand). Done one after the other, each grid point would
+/// hold the unit down 20 h: 160 h in eight grid points.
+#[test]
+fn parts_due_at_one_reading_are_replaced_together() {
+    let text = OnePart {
+        life: r#"{ dist = "weibull", shape = 3.0, scale = 1e9 }"#,
+        units: 3,
+        positions: 2,
+        horizon: 1000.0,
+        price: 1.0,
+        labour_planned: 1.0,
+        labour_unplanned: 1.0,
+        duration_planned: 10.0,
+        duration_unplanned: 10.0,
+        lead: INSTANT,
+        policy: r#"{ rule = "block", interval_hours = 100, stock = 2 }"#,
+    }
+    .text();
+    let s = run(&model(&text), "x", 20);
+    let a = &s.acc;
+    assert_eq!(a.failures.mean(), 0.0);
+    assert_eq!(a.planned.mean(), 3.0 * 18.0);
+    assert!(
+        (a.down_planned.mean() - 3.0 * 90.0).abs() < 1e-9,
+        "planned down hours {}",
+        a.down_planned.mean()
+    );
+}

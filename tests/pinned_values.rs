@@ -91,7 +91,7 @@ fn b0_results_are_pinned() {
         include_str!("../scenarios/b0.toml"),
         &[(
             "reference",
-            "1f04a20eddd061a498765aa2db65a1274749914538c6a4ce73034d53b9651750",
+            "3c0b15e96b53524868570b6a4987b3f488d57dd44584fd2974dc82875b01402a",
         )],
     );
 }
@@ -103,7 +103,7 @@ fn b1_results_are_pinned() {
         include_str!("../scenarios/b1.toml"),
         &[(
             "reference",
-            "472a3b29f3a9b5e5094a6e03f532f9252685275a6b1013a62be655b575cb30e3",
+            "4fe8b17242f34fe6a3da10474a2fdd4738c57f79009e0602dad526b2a6343552",
         )],
     );
 }
@@ -116,11 +116,11 @@ fn demo_2026_results_are_pinned() {
         &[
             (
                 "current",
-                "1780fdb4b4bd7b46095552323d9b5ba578bbed49553b8077f0660bc6dc33fa1a",
+                "6b4ee0f044e0765bb2b3611b91e0f3a39a0b9eddeef56db8330dd053524d1ee2",
             ),
             (
                 "reference",
-                "2ac4cb3eb4ef49d160738dab9e83bb8ab83cf957269782241867ffd122120d88",
+                "b635d8b4ea4e1cc2b20689becf491761452f6bb1712894aabd5d0a52fd24c689",
             ),
         ],
     );
@@ -134,11 +134,11 @@ fn mixed_results_are_pinned() {
         &[
             (
                 "blocky",
-                "b527a9608c4b752150f3f14a66280191cc32cacd1b40bc90e41b4a72b65e89e4",
+                "f148acb085accb9439ad8680dd2332ecca2c6852f8595d385698bc249512fafa",
             ),
             (
                 "aged",
-                "2e58cf5d13fc31a5a9f72984c4dd78cc7030f9bfd8d43a1395034bc1b90ec528",
+                "1fff9ac346b9351c9e64ecb90d65168e1eca127b590ca497f452773be46ee2c9",
             ),
         ],
     );
