@@ -51,18 +51,16 @@
 use crate::analytic::{
     PoissonPipeline, age_replacement_cost_rate, block_replacement_cost_rate,
 };
-use crate::echelon::{ByLocation, SiteDemand, TwoEchelon, allocation_hull};
+use std::collections::BTreeMap;
+
+use crate::echelon::{SiteDemand, TwoEchelon};
 use crate::model::{
     CostBasis, Model, PartPolicy, PartSearch, Policy, Rule, SearchSpace, Stock,
 };
-use crate::recost::{Costed, non_dominated};
+use crate::recost::Costed;
 use crate::run::Progress;
 
 use super::{FrontierConfig, FrontierError, SearchStats};
-
-/// Most rule combinations the analytic stage walks; beyond, each part
-/// type's dearest rules are dropped first.
-const MAX_RULE_COMBOS: usize = 4096;
 
 /// True when a scenario is searched here: it names sites (stock per site
 /// and at a depot) or has a ready-units target.
@@ -100,10 +98,6 @@ pub(super) fn stock_choices(ps: &PartSearch) -> Vec<Stock> {
 #[derive(Debug, Clone)]
 struct StockPoint {
     stock: Stock,
-    /// The money the marginal analysis ranks by (unit price x spares).
-    key_cost: f64,
-    /// Weighted total site backorders.
-    weighted: f64,
     /// Expected backorders at each site (units down waiting for a spare).
     site_backorders: Vec<f64>,
     /// Capital of the initial stock.
@@ -149,6 +143,8 @@ struct Analytic {
     /// Down units each site may have while the target still holds (ready
     /// target), per site.
     slack: Option<Vec<u32>>,
+    /// How much each site's units down weigh (see [`site_weights`]).
+    weights: Vec<f64>,
     penalty_per_unit_hour: f64,
     horizon: f64,
     basis: CostBasis,
@@ -212,19 +208,6 @@ impl Analytic {
             .map(|(p, part)| {
                 let ps = &space.parts[p];
                 let shipping = model.depot.as_ref().map_or(0.0, |d| d.cost_per_shipment);
-                // The money the marginal analysis ranks a spare by: its
-                // capital (on the spend basis) and its holding if always on
-                // the shelf.
-                let holding_h = part.holding_per_hour * horizon;
-                let capital_key = if basis == CostBasis::Spend {
-                    part.price
-                } else {
-                    0.0
-                };
-                let mut unit = capital_key + holding_h;
-                if unit <= 0.0 || !unit.is_finite() {
-                    unit = part.price.max(1.0);
-                }
                 let fleet_positions: f64 = positions[p].iter().sum();
                 rates[p]
                     .iter()
@@ -274,7 +257,6 @@ impl Analytic {
                             ps,
                             &demands,
                             part.mean_return(condemn),
-                            unit,
                             &weights,
                         );
                         RuleFigures {
@@ -291,33 +273,16 @@ impl Analytic {
             parts,
             site_units,
             slack,
+            weights,
             penalty_per_unit_hour: model.downtime_penalty,
             horizon,
             basis,
         }
     }
 
-    /// Analytic (cost, score) of one candidate: per part type its rule
-    /// index and stock path index.
-    fn score(&self, rules: &[usize], steps: &[usize]) -> (f64, f64) {
-        let n_sites = self.site_units.len();
-        let mut down = vec![0.0; n_sites];
-        let mut cost = 0.0;
-        for (p, (&r, &k)) in rules.iter().zip(steps).enumerate() {
-            let f = &self.parts[p][r];
-            let point = &f.path[k];
-            cost += f.running + point.holding;
-            if self.basis == CostBasis::Spend {
-                cost += point.capital;
-            }
-            for (j, d) in down.iter_mut().enumerate() {
-                *d += f.in_replacement[j] + point.site_backorders[j];
-            }
-        }
-        if self.basis == CostBasis::TotalWithPenalty {
-            cost += self.penalty_per_unit_hour * self.horizon * down.iter().sum::<f64>();
-        }
-        let score = match &self.slack {
+    /// The analytic score of the target from the units down at each site.
+    fn score(&self, down: &[f64]) -> f64 {
+        match &self.slack {
             Some(slack) => down
                 .iter()
                 .zip(slack)
@@ -327,8 +292,7 @@ impl Analytic {
                 let units: f64 = self.site_units.iter().sum();
                 1.0 - down.iter().sum::<f64>() / units.max(1.0)
             }
-        };
-        (cost, score)
+        }
     }
 }
 
@@ -361,22 +325,25 @@ fn site_weights(down: &[f64], slack: &[u32]) -> Vec<f64> {
     raw.iter().map(|&w| w.max(1e-3 * top)).collect()
 }
 
-/// A part type's stock path under one rule: the lower convex hull of the
-/// marginal analysis over the depot and the sites, each point raised to
-/// the space's least levels, with its per-site backorders, capital and
-/// holding. A part type nobody fits has the one point of least stock.
+/// A part type's stock points under one rule: for each depot level of the
+/// space, Sherbrooke's marginal analysis over the sites (from the space's
+/// least levels, one spare at a time where it cuts the weighted site
+/// backorders most per unit of money; each site's backorders are convex in
+/// its own stock, so for a fixed depot level the path is efficient; one
+/// path per depot level is the remedy for the depot's non-convexity that
+/// `echelon::allocation_hull` also uses), every step kept, with its
+/// per-site backorders, capital and holding. A part type nobody fits has
+/// the one point of least stock.
 fn stock_path(
     model: &Model,
     p: usize,
     ps: &PartSearch,
     demands: &[SiteDemand],
     depot_resupply: f64,
-    unit: f64,
     weights: &[f64],
 ) -> Vec<StockPoint> {
     let part = &model.parts[p];
     let n_sites = demands.len();
-    // Bounds and least levels per location.
     let (site_bounds, depot_bound): (Vec<(u32, u32)>, (u32, u32)) = match &ps.locations {
         Some(r) => (r.sites.clone(), r.depot),
         None => (vec![(ps.stock_min, ps.stock_max); n_sites], (0, 0)),
@@ -393,187 +360,268 @@ fn stock_path(
         None => TwoEchelon::without_depot(demands),
     };
     let least_sites: Vec<u32> = site_bounds.iter().map(|b| b.0).collect();
-    let least = || {
-        let stock = make_stock(&least_sites, depot_bound.0);
-        let capital = f64::from(stock.total()) * part.price;
-        StockPoint {
-            key_cost: f64::from(stock.total()) * unit,
-            weighted: 0.0,
-            site_backorders: vec![0.0; n_sites],
-            capital,
-            holding: capital / part.price.max(f64::MIN_POSITIVE)
-                * part.holding_per_hour
-                * model.horizon,
-            stock,
-        }
-    };
     let Ok(echelon) = echelon else {
-        return vec![least()];
-    };
-    let bounds = ByLocation {
-        depot: depot_bound.1,
-        sites: site_bounds.iter().map(|b| b.1).collect(),
-    };
-    let prices = ByLocation {
-        depot: unit,
-        sites: vec![unit; n_sites],
-    };
-    let Ok(hull) = allocation_hull(&echelon, &bounds, &prices, Some(weights)) else {
-        return vec![least()];
-    };
-    let mut out: Vec<StockPoint> = Vec::with_capacity(hull.len());
-    for a in hull {
-        let sites: Vec<u32> = a
-            .stock
-            .sites
-            .iter()
-            .zip(&site_bounds)
-            .map(|(&s, b)| s.max(b.0))
-            .collect();
-        let depot = if model.depot.is_some() {
-            a.stock.depot.max(depot_bound.0)
-        } else {
-            0
-        };
-        let stock = make_stock(&sites, depot);
-        if out.last().is_some_and(|l| l.stock == stock) {
-            continue;
-        }
-        let at = ByLocation {
-            depot,
-            sites: sites.clone(),
-        };
-        let Ok(e) = echelon.evaluate(&at) else {
-            continue;
-        };
-        let site_backorders: Vec<f64> = e.sites.iter().map(|s| s.backorders).collect();
-        let depot_on_hand = e.depot.map_or(0.0, |d| {
-            (f64::from(depot) - d.pipeline_mean + d.backorders).max(0.0)
-        });
-        let on_hand: f64 = e.sites.iter().map(|s| s.on_hand).sum::<f64>() + depot_on_hand;
-        out.push(StockPoint {
-            key_cost: f64::from(stock.total()) * unit,
-            weighted: site_backorders
-                .iter()
-                .zip(weights)
-                .map(|(b, w)| b * w)
-                .sum(),
-            site_backorders,
-            capital: f64::from(stock.total()) * part.price,
-            holding: on_hand * part.holding_per_hour * model.horizon,
+        // No demand: nothing is ever short; the least stock only.
+        let stock = make_stock(&least_sites, depot_bound.0);
+        let spares = f64::from(stock.total());
+        return vec![StockPoint {
+            site_backorders: vec![0.0; n_sites],
+            capital: spares * part.price,
+            holding: spares * part.holding_per_hour * model.horizon,
             stock,
+        }];
+    };
+    let depot_levels = if model.depot.is_some() {
+        depot_bound.0..=depot_bound.1
+    } else {
+        0..=0
+    };
+    let mut out: Vec<StockPoint> = Vec::new();
+    for s0 in depot_levels {
+        let depot_on_hand = echelon.depot(s0).map_or(0.0, |d| {
+            (f64::from(s0) - d.pipeline_mean + d.backorders).max(0.0)
         });
-    }
-    if out.is_empty() {
-        out.push(least());
-    }
-    out
-}
-
-/// The rule combinations walked: every combination of each part type's
-/// rules, the dearest rules (by running money) dropped first from the part
-/// type with the most while there are more than [`MAX_RULE_COMBOS`].
-fn rule_combos(an: &Analytic) -> Vec<Vec<usize>> {
-    let mut kept: Vec<Vec<usize>> = an
-        .parts
-        .iter()
-        .map(|rules| {
-            let mut idx: Vec<usize> = (0..rules.len()).collect();
-            idx.sort_by(|&a, &b| rules[a].running.total_cmp(&rules[b].running));
-            idx
-        })
-        .collect();
-    let count = |kept: &[Vec<usize>]| {
-        kept.iter()
-            .fold(1usize, |acc, k| acc.saturating_mul(k.len().max(1)))
-    };
-    while count(&kept) > MAX_RULE_COMBOS {
-        let Some(widest) = (0..kept.len()).max_by_key(|&p| kept[p].len()) else {
-            break;
-        };
-        if kept[widest].len() <= 1 {
-            break;
-        }
-        kept[widest].pop();
-    }
-    for k in &mut kept {
-        k.sort_unstable();
-    }
-    let mut combos: Vec<Vec<usize>> = vec![Vec::new()];
-    for k in &kept {
-        combos = combos
-            .into_iter()
-            .flat_map(|c| {
-                k.iter().map(move |&r| {
-                    let mut c = c.clone();
-                    c.push(r);
-                    c
-                })
-            })
-            .collect();
-    }
-    combos
-}
-
-/// A candidate policy: per part type its rule index and stock path index,
-/// with its analytic cost and score.
-#[derive(Debug, Clone)]
-struct Candidate {
-    rules: Vec<usize>,
-    steps: Vec<usize>,
-    cost: f64,
-    score: f64,
-}
-
-/// Steps 2 and 3: every rule combination's system path, and the analytic
-/// frontier of all their points, cheapest first.
-fn analytic_frontier(an: &Analytic, space: &SearchSpace) -> Vec<Candidate> {
-    let mut pool: Vec<Candidate> = Vec::new();
-    let fits = |rules: &[usize], steps: &[usize]| {
-        space.spares_budget.is_none_or(|b| {
-            let capital: f64 = rules
-                .iter()
-                .zip(steps)
-                .enumerate()
-                .map(|(p, (&r, &k))| an.parts[p][r].path[k].capital)
-                .sum();
-            capital <= b + 1e-9
-        })
-    };
-    for rules in rule_combos(an) {
-        let mut steps = vec![0usize; rules.len()];
+        let mut sites = least_sites.clone();
         loop {
-            if fits(&rules, &steps) {
-                let (cost, score) = an.score(&rules, &steps);
-                pool.push(Candidate {
-                    rules: rules.clone(),
-                    steps: steps.clone(),
-                    cost,
-                    score,
-                });
-            }
-            // The part type whose next stock point cuts the weighted
-            // backorders most per unit of money (ties: the lower index).
+            let measures: Vec<_> = (0..n_sites)
+                .map(|j| echelon.site(j, s0, sites[j]))
+                .collect();
+            let site_backorders: Vec<f64> = measures.iter().map(|m| m.backorders).collect();
+            let on_hand: f64 = measures.iter().map(|m| m.on_hand).sum::<f64>() + depot_on_hand;
+            let stock = make_stock(&sites, s0);
+            let spares = f64::from(stock.total());
+            out.push(StockPoint {
+                site_backorders,
+                capital: spares * part.price,
+                holding: on_hand * part.holding_per_hour * model.horizon,
+                stock,
+            });
+            // The site whose next spare cuts the weighted backorders most
+            // (every site's spare costs the same; ties: the lower index).
             let mut best: Option<(f64, usize)> = None;
-            for (p, (&r, &k)) in rules.iter().zip(&steps).enumerate() {
-                let path = &an.parts[p][r].path;
-                if k + 1 < path.len() {
-                    let dc = (path[k + 1].key_cost - path[k].key_cost).max(1e-12);
-                    let gain = (path[k].weighted - path[k + 1].weighted) / dc;
+            for j in 0..n_sites {
+                if sites[j] < site_bounds[j].1 {
+                    let now = echelon.site(j, s0, sites[j]).backorders;
+                    let next = echelon.site(j, s0, sites[j] + 1).backorders;
+                    let gain = weights[j] * (now - next);
                     if best.is_none_or(|b| gain > b.0) {
-                        best = Some((gain, p));
+                        best = Some((gain, j));
                     }
                 }
             }
             match best {
-                Some((_, p)) => steps[p] += 1,
-                None => break,
+                Some((gain, j)) if gain > 1e-12 => sites[j] += 1,
+                _ => break,
             }
         }
     }
-    let pts: Vec<(f64, f64)> = pool.iter().map(|c| (c.cost, c.score)).collect();
-    let front = non_dominated(&pts);
-    front.into_iter().map(|i| pool[i].clone()).collect()
+    out
+}
+
+/// One choice for one part type: a rule and one of its stock points, with
+/// what it adds to the analytic cost, to each site's units down and to the
+/// weighted units down.
+#[derive(Debug, Clone)]
+struct PartOption {
+    rule: usize,
+    step: usize,
+    cost: f64,
+    capital: f64,
+    /// Units down at each site: in replacement plus backorders.
+    down: Vec<f64>,
+    weighted: f64,
+}
+
+/// A partial or whole policy in the merge: what its part types add up to.
+#[derive(Debug, Clone)]
+struct Node {
+    cost: f64,
+    capital: f64,
+    weighted: f64,
+    down: Vec<f64>,
+    /// Index of the node it extends in the previous layer.
+    parent: u32,
+    /// Index of the part type's option it adds.
+    option: u32,
+}
+
+/// Most nodes kept per layer of the merge; beyond, the layer's
+/// non-dominated staircase is thinned evenly along the cost.
+const MAX_NODES: usize = 6000;
+
+/// Layers of non-dominated items in (cost, weighted), lower better in
+/// both: the first `depth` layers of peeling (the staircase, then the
+/// staircase of the rest, ...), each item with its layer from 0, cheapest
+/// first within a layer.
+fn layers<T>(items: Vec<T>, key: impl Fn(&T) -> (f64, f64), depth: usize) -> Vec<(usize, T)> {
+    let mut rest: Vec<T> = items;
+    rest.sort_by(|a, b| {
+        let (ca, wa) = key(a);
+        let (cb, wb) = key(b);
+        ca.total_cmp(&cb).then(wa.total_cmp(&wb))
+    });
+    let mut out = Vec::new();
+    for layer in 0..depth {
+        if rest.is_empty() {
+            break;
+        }
+        let mut later = Vec::new();
+        let mut least = f64::INFINITY;
+        for it in rest {
+            let (_, w) = key(&it);
+            if w < least - 1e-12 {
+                least = w;
+                out.push((layer, it));
+            } else {
+                later.push(it);
+            }
+        }
+        rest = later;
+    }
+    out
+}
+
+/// Layers of peeling kept of each part type's options and of each merge.
+const DEPTH: usize = 3;
+
+/// A whole policy of the analytic stage: per part type (rule index, stock
+/// point index), its analytic cost and its layer of the analytic frontier
+/// (0: on it).
+#[derive(Debug, Clone)]
+struct Candidate {
+    choice: Vec<(usize, usize)>,
+    cost: f64,
+    layer: usize,
+}
+
+/// Steps 2 and 3: each part type's options (its rules times its stock
+/// points) on its own staircase of (analytic cost, weighted units down),
+/// merged part type by part type keeping the staircase of the sums (the
+/// weighted units down add over part types, so no combination off a
+/// staircase can come back onto the whole's), within the spares budget;
+/// then the analytic frontier of the whole policies in (cost, score),
+/// cheapest first, each as per part type (rule index, stock point index).
+fn analytic_frontier(an: &Analytic, space: &SearchSpace) -> (Vec<Candidate>, usize) {
+    let n_sites = an.site_units.len();
+    let budget = space.spares_budget;
+    let options: Vec<Vec<PartOption>> = an
+        .parts
+        .iter()
+        .map(|rules| {
+            let mut v = Vec::new();
+            for (r, f) in rules.iter().enumerate() {
+                for (k, pt) in f.path.iter().enumerate() {
+                    let down: Vec<f64> = (0..n_sites)
+                        .map(|j| f.in_replacement[j] + pt.site_backorders[j])
+                        .collect();
+                    let mut cost = f.running + pt.holding;
+                    if an.basis == CostBasis::Spend {
+                        cost += pt.capital;
+                    } else {
+                        cost += an.penalty_per_unit_hour * an.horizon * down.iter().sum::<f64>();
+                    }
+                    let weighted = down.iter().zip(&an.weights).map(|(d, w)| d * w).sum();
+                    v.push(PartOption {
+                        rule: r,
+                        step: k,
+                        cost,
+                        capital: pt.capital,
+                        down,
+                        weighted,
+                    });
+                }
+            }
+            layers(v, |o| (o.cost, o.weighted), DEPTH)
+                .into_iter()
+                .map(|(_, o)| o)
+                .collect::<Vec<_>>()
+        })
+        .collect();
+    let mut layers_kept: Vec<Vec<Node>> = Vec::with_capacity(options.len());
+    let mut prev: Vec<Node> = vec![Node {
+        cost: 0.0,
+        capital: 0.0,
+        weighted: 0.0,
+        down: vec![0.0; n_sites],
+        parent: 0,
+        option: 0,
+    }];
+    let mut scored = 0usize;
+    for opts in &options {
+        let mut next: Vec<Node> = Vec::with_capacity(prev.len() * opts.len());
+        for (i, node) in prev.iter().enumerate() {
+            for (o, opt) in opts.iter().enumerate() {
+                let capital = node.capital + opt.capital;
+                if budget.is_some_and(|b| capital > b + 1e-9) {
+                    continue;
+                }
+                next.push(Node {
+                    cost: node.cost + opt.cost,
+                    capital,
+                    weighted: node.weighted + opt.weighted,
+                    down: node.down.iter().zip(&opt.down).map(|(a, b)| a + b).collect(),
+                    parent: i as u32,
+                    option: o as u32,
+                });
+            }
+        }
+        scored += next.len();
+        let mut stair: Vec<Node> = layers(next, |n| (n.cost, n.weighted), DEPTH)
+            .into_iter()
+            .map(|(_, n)| n)
+            .collect();
+        if stair.len() > MAX_NODES {
+            stair.sort_by(|a, b| a.cost.total_cmp(&b.cost));
+            let len = stair.len();
+            let keep: Vec<usize> = (0..MAX_NODES)
+                .map(|k| k * (len - 1) / (MAX_NODES - 1))
+                .collect();
+            let mut it = keep.into_iter().peekable();
+            let mut idx = 0usize;
+            stair.retain(|_| {
+                let take = it.peek() == Some(&idx);
+                if take {
+                    while it.peek() == Some(&idx) {
+                        it.next();
+                    }
+                }
+                idx += 1;
+                take
+            });
+        }
+        layers_kept.push(std::mem::take(&mut prev));
+        prev = stair;
+    }
+    // `layers_kept[0]` is the empty start; `layers_kept[p + 1]` holds part type p's
+    // merged nodes and `prev` the last one's.
+    let last = prev;
+    let scored_nodes: Vec<(f64, f64, usize)> = last
+        .iter()
+        .enumerate()
+        .map(|(i, n)| (n.cost, -an.score(&n.down), i))
+        .collect();
+    let ranked = layers(scored_nodes, |&(c, w, _)| (c, w), DEPTH + 1);
+    let n_parts = options.len();
+    let out = ranked
+        .into_iter()
+        .map(|(layer, (cost, _, i))| {
+            let mut choice = vec![(0usize, 0usize); n_parts];
+            let mut node = &last[i];
+            for p in (0..n_parts).rev() {
+                let opt = &options[p][node.option as usize];
+                choice[p] = (opt.rule, opt.step);
+                if p > 0 {
+                    node = &layers_kept[p][node.parent as usize];
+                }
+            }
+            Candidate {
+                choice,
+                cost,
+                layer,
+            }
+        })
+        .collect();
+    (out, scored)
 }
 
 /// The search of a scenario with sites or a ready-units target: steps 1
@@ -591,52 +639,55 @@ pub(super) fn search(
 ) -> Result<Vec<Costed>, FrontierError> {
     let t_start = std::time::Instant::now();
     let an = Analytic::new(model, space);
-    let front = analytic_frontier(&an, space);
+    let (candidates, scored) = analytic_frontier(&an, space);
     stats.seconds_screening = t_start.elapsed().as_secs_f64();
-    if front.is_empty() {
+    if candidates.is_empty() {
         return Err(FrontierError::NothingFits(
             space.spares_budget.unwrap_or(0.0),
         ));
     }
-    stats.surrogate_scored = front.len();
+    stats.surrogate_scored = scored;
     let t_search = std::time::Instant::now();
     let n = config.search_trials;
-    let budget = config.max_full.max(2).min(front.len());
+    let budget = config.max_full.max(2).min(candidates.len());
     progress.phase("search", budget as u64 * n);
-    let policy_of = |c: &Candidate| Policy {
+    let policy_of = |choice: &[(usize, usize)]| Policy {
         name: String::new(),
-        parts: c
-            .rules
+        parts: choice
             .iter()
-            .zip(&c.steps)
             .enumerate()
-            .map(|(p, (&r, &k))| PartPolicy {
+            .map(|(p, &(r, k))| PartPolicy {
                 rule: an.parts[p][r].rule,
                 stock: an.parts[p][r].path[k].stock.clone(),
             })
             .collect(),
     };
-    // Simulated so far: index along the analytic frontier -> result.
-    let mut done: std::collections::BTreeMap<usize, Costed> = std::collections::BTreeMap::new();
-    let simulate = |i: usize, done: &mut std::collections::BTreeMap<usize, Costed>| {
-        let policy = policy_of(&front[i]);
+    // Simulated so far: index into `candidates` -> result.
+    let mut done: BTreeMap<usize, Costed> = BTreeMap::new();
+    let simulate = |i: usize, done: &mut BTreeMap<usize, Costed>| {
+        let policy = policy_of(&candidates[i].choice);
         let s = crate::run::evaluate(model, &policy, 0..n, config.target, progress)
             .ok_or(FrontierError::Interrupted)?;
         done.insert(i, Costed::of(s, space.cost));
         Ok::<(), FrontierError>(())
     };
-    let last = front.len() - 1;
-    // Evenly spaced first picks, the cheapest and the dearest among them.
-    let first = (budget / 3).clamp(2, budget);
+    // The analytic frontier is `candidates[..front]` (cheapest first).
+    let front = candidates.iter().take_while(|c| c.layer == 0).count();
+    let last = front - 1;
+    let on_front = (budget * 2 / 3).clamp(2.min(front), front);
+    // Evenly spaced first picks along the analytic frontier, the cheapest
+    // and the dearest among them.
+    let first = (on_front / 2).clamp(1, on_front.max(1));
     for k in 0..first {
         let i = ((k * last) as f64 / (first - 1).max(1) as f64).round() as usize;
         if !done.contains_key(&i) {
             simulate(i, &mut done)?;
         }
     }
-    // Then where the simulated frontier bends most.
+    // Then where the simulated frontier bends most: the middle of the
+    // neighbouring pair with the largest gap in chance times gap in cost.
     let eps = 1.0 / n.max(1) as f64;
-    while done.len() < budget {
+    while done.len() < on_front {
         let keys: Vec<usize> = done.keys().copied().collect();
         let mut best: Option<(f64, usize)> = None;
         for w in keys.windows(2) {
@@ -655,6 +706,49 @@ pub(super) fn search(
         match best {
             Some((_, i)) => simulate(i, &mut done)?,
             None => break,
+        }
+    }
+    // The rest of the budget: the next layers of the analytic frontier
+    // (and what is left of it), within the analytic costs where the
+    // simulated chance rises from below 0.02 to 0.995, spread evenly along
+    // the cost, layer by layer.
+    let lo = done
+        .iter()
+        .filter(|(_, c)| c.chance.value < 0.02)
+        .map(|(&i, _)| candidates[i].cost)
+        .fold(f64::NEG_INFINITY, f64::max);
+    let hi = done
+        .iter()
+        .filter(|(_, c)| c.chance.value >= 0.995)
+        .map(|(&i, _)| candidates[i].cost)
+        .fold(f64::INFINITY, f64::min);
+    let mut layer = 0;
+    while done.len() < budget {
+        let pool: Vec<usize> = (0..candidates.len())
+            .filter(|&i| {
+                candidates[i].layer == layer
+                    && !done.contains_key(&i)
+                    && candidates[i].cost >= lo
+                    && candidates[i].cost <= hi
+            })
+            .collect();
+        let room = budget - done.len();
+        if pool.len() <= room {
+            for i in pool {
+                simulate(i, &mut done)?;
+            }
+        } else {
+            let len = pool.len();
+            for k in 0..room {
+                let i = pool[(k * (len - 1)) / (room - 1).max(1)];
+                if !done.contains_key(&i) {
+                    simulate(i, &mut done)?;
+                }
+            }
+        }
+        layer += 1;
+        if layer > DEPTH {
+            break;
         }
     }
     stats.evaluated = done.len();
