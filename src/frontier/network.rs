@@ -48,15 +48,11 @@
 //! time a unit is down (its parts do not age then), and the spread of the
 //! cost across trials (a percentile cost measure is ranked by the mean).
 
-use crate::analytic::{
-    PoissonPipeline, age_replacement_cost_rate, block_replacement_cost_rate,
-};
+use crate::analytic::{PoissonPipeline, age_replacement_cost_rate, block_replacement_cost_rate};
 use std::collections::BTreeMap;
 
 use crate::echelon::{SiteDemand, TwoEchelon};
-use crate::model::{
-    CostBasis, Model, PartPolicy, PartSearch, Policy, Rule, SearchSpace, Stock,
-};
+use crate::model::{CostBasis, Model, PartPolicy, PartSearch, Policy, Rule, SearchSpace, Stock};
 use crate::recost::Costed;
 use crate::run::Progress;
 
@@ -235,8 +231,8 @@ impl Analytic {
                             * horizon
                             * (planned * (part.labour_planned + material_p + shipping)
                                 + failed * (part.labour_unplanned + material_f + shipping));
-                        let per_position = planned * part.duration_planned
-                            + failed * part.duration_unplanned;
+                        let per_position =
+                            planned * part.duration_planned + failed * part.duration_unplanned;
                         let in_replacement: Vec<f64> =
                             positions[p].iter().map(|n| n * per_position).collect();
                         let rate = planned + failed;
@@ -251,14 +247,8 @@ impl Analytic {
                                 },
                             })
                             .collect();
-                        let path = stock_path(
-                            model,
-                            p,
-                            ps,
-                            &demands,
-                            part.mean_return(condemn),
-                            &weights,
-                        );
+                        let path =
+                            stock_path(model, p, ps, &demands, part.mean_return(condemn), &weights);
                         RuleFigures {
                             rule,
                             running,
@@ -377,6 +367,45 @@ fn stock_path(
         0..=0
     };
     let mut out: Vec<StockPoint> = Vec::new();
+    let point = |sites: &[u32], s0: u32, depot_on_hand: f64| {
+        let measures: Vec<_> = (0..n_sites)
+            .map(|j| echelon.site(j, s0, sites[j]))
+            .collect();
+        let on_hand: f64 = measures.iter().map(|m| m.on_hand).sum::<f64>() + depot_on_hand;
+        let stock = make_stock(sites, s0);
+        let spares = f64::from(stock.total());
+        StockPoint {
+            site_backorders: measures.iter().map(|m| m.backorders).collect(),
+            capital: spares * part.price,
+            holding: on_hand * part.holding_per_hour * model.horizon,
+            stock,
+        }
+    };
+    let all = stock_choices(ps);
+    if all.len() <= MAX_ENUMERATED {
+        // Few enough: every stock choice, each by the two-echelon model.
+        let mut depot_cache: Option<(u32, f64)> = None;
+        for stock in all {
+            let s0 = if model.depot.is_some() {
+                stock.depot()
+            } else {
+                0
+            };
+            let on_hand0 = match depot_cache {
+                Some((d, h)) if d == s0 => h,
+                _ => {
+                    let h = echelon.depot(s0).map_or(0.0, |d| {
+                        (f64::from(s0) - d.pipeline_mean + d.backorders).max(0.0)
+                    });
+                    depot_cache = Some((s0, h));
+                    h
+                }
+            };
+            let sites: Vec<u32> = stock.site_levels().collect();
+            out.push(point(&sites, s0, on_hand0));
+        }
+        return out;
+    }
     for s0 in depot_levels {
         let depot_on_hand = echelon.depot(s0).map_or(0.0, |d| {
             (f64::from(s0) - d.pipeline_mean + d.backorders).max(0.0)
@@ -481,8 +510,12 @@ fn layers<T>(items: Vec<T>, key: impl Fn(&T) -> (f64, f64), depth: usize) -> Vec
     out
 }
 
+/// Most stock choices of a part type evaluated one by one; beyond, the
+/// marginal analysis per depot level.
+const MAX_ENUMERATED: usize = 4096;
+
 /// Layers of peeling kept of each part type's options and of each merge.
-const DEPTH: usize = 3;
+const DEPTH: usize = 6;
 
 /// A whole policy of the analytic stage: per part type (rule index, stock
 /// point index), its analytic cost and its layer of the analytic frontier
@@ -559,7 +592,12 @@ fn analytic_frontier(an: &Analytic, space: &SearchSpace) -> (Vec<Candidate>, usi
                     cost: node.cost + opt.cost,
                     capital,
                     weighted: node.weighted + opt.weighted,
-                    down: node.down.iter().zip(&opt.down).map(|(a, b)| a + b).collect(),
+                    down: node
+                        .down
+                        .iter()
+                        .zip(&opt.down)
+                        .map(|(a, b)| a + b)
+                        .collect(),
                     parent: i as u32,
                     option: o as u32,
                 });
@@ -677,7 +715,7 @@ pub(super) fn search(
     let on_front = (budget * 2 / 3).clamp(2.min(front), front);
     // Evenly spaced first picks along the analytic frontier, the cheapest
     // and the dearest among them.
-    let first = (on_front / 2).clamp(1, on_front.max(1));
+    let first = on_front.clamp(1, 6);
     for k in 0..first {
         let i = ((k * last) as f64 / (first - 1).max(1) as f64).round() as usize;
         if !done.contains_key(&i) {
@@ -686,7 +724,6 @@ pub(super) fn search(
     }
     // Then where the simulated frontier bends most: the middle of the
     // neighbouring pair with the largest gap in chance times gap in cost.
-    let eps = 1.0 / n.max(1) as f64;
     while done.len() < on_front {
         let keys: Vec<usize> = done.keys().copied().collect();
         let mut best: Option<(f64, usize)> = None;
@@ -696,10 +733,10 @@ pub(super) fn search(
                 continue;
             }
             let (ca, cb) = (&done[&a], &done[&b]);
-            let dk = (cb.chance.value - ca.chance.value).max(0.0) + eps;
+            let dk = (cb.chance.value - ca.chance.value).max(0.0);
             let dc = (cb.cost.mean - ca.cost.mean).abs().max(1e-9);
             let gain = dk * dc;
-            if best.is_none_or(|x| gain > x.0) {
+            if gain > 0.0 && best.is_none_or(|x| gain > x.0) {
                 best = Some((gain, (a + b) / 2));
             }
         }
