@@ -31,6 +31,10 @@
 //! 5. **Re-costing** of those on fresh trials (disjoint trial indices) and
 //!    the frontier recomputed from the re-costed figures, with paired
 //!    noise flags between neighbours.
+//!
+//! A scenario with sites, a depot or a ready-units target is searched by
+//! `network` instead of steps 1 to 4 (the two-echelon model ranks the
+//! candidates; no screening runs), then re-costed by step 5.
 
 pub mod lp;
 mod network;
