@@ -5,7 +5,8 @@
 //! (Sherbrooke 1968) and VARI-METRIC (Sherbrooke 1986; Graves 1985), the
 //! two-moment negative binomial for site backorders, Graves' exact site
 //! distribution for Poisson demand and fixed times, and the marginal
-//! analysis of stock over the depot and the sites (the frontier's seed);
+//! analysis of stock over the depot and the sites; the site and depot
+//! measures the frontier's search over sites ranks its candidates by;
 //! the M/M/c repair shop (Erlang C) and the finite-source machine-repair
 //! model with spares: its generator, stationary distribution and transient
 //! time-average from "all new" by uniformization.
@@ -1065,8 +1066,9 @@ pub fn allocation_path(
 /// hull in (cost, weighted total backorders), from the all-zero allocation
 /// to the cheapest allocation with the least backorders. Every returned
 /// point is optimal for its cost among all allocations within the bounds,
-/// and no allocation lies below the segments between them. This is the
-/// one to seed the frontier with.
+/// and no allocation lies below the segments between them. (The frontier's
+/// search over sites runs the same marginal analysis per depot level but
+/// keeps every step, not only the hull's vertices.)
 ///
 /// Points on a hull edge but not at a vertex are dropped; among
 /// allocations with the same (cost, backorders), the lowest depot stock

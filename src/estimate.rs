@@ -503,6 +503,13 @@ pub fn frontier(model: &Model, config: &FrontierConfig, threads: usize) -> Estim
         }
         mean_nanos[p] = sum / ps.rules.len().max(1) as f64;
     }
+    // With sites or a ready-units target the search ranks its candidates
+    // analytically: no screening runs.
+    let analytic_seed = model.has_sites() || model.ready.is_some();
+    if analytic_seed {
+        screen_nanos = 0.0;
+        screen_runs = 0.0;
+    }
     // A whole policy costs about the sum of its part types' single-part
     // work (the busiest option of each, to lean high).
     let policy_nanos: f64 = worst_single.iter().sum();
@@ -529,7 +536,8 @@ pub fn frontier(model: &Model, config: &FrontierConfig, threads: usize) -> Estim
         .iter()
         .map(|ps| ps.rules.len() as f64 * f64::from(ps.stock_max - ps.stock_min + 1))
         .sum();
-    let kept = kept_search + k * v + options * screen_n * 16.0 / BYTES_PER_KEPT_TRIAL;
+    let screened = if analytic_seed { 0.0 } else { options };
+    let kept = kept_search + k * v + screened * screen_n * 16.0 / BYTES_PER_KEPT_TRIAL;
     let bytes = BASE_BYTES
         + model_bytes(model)
         + workspace_bytes(model) * threads as f64

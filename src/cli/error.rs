@@ -108,8 +108,7 @@ impl From<FrontierError> for CliError {
             FrontierError::Interrupted => CliError::Interrupted,
             FrontierError::NoSearchSpace
             | FrontierError::TooLarge { .. }
-            | FrontierError::NothingFits(_)
-            | FrontierError::NotCovered(_) => CliError::User(e.to_string()),
+            | FrontierError::NothingFits(_) => CliError::User(e.to_string()),
         }
     }
 }

@@ -12,7 +12,7 @@ use std::path::Path;
 use std::time::Instant;
 
 use wearout::frontier::{FrontierConfig, FrontierResult, search};
-use wearout::model::{Model, Policy};
+use wearout::model::Policy;
 use wearout::recost;
 use wearout::shard::RunKind;
 
@@ -31,28 +31,6 @@ pub struct FrontierArgs<'a> {
     pub policies: Option<&'a Path>,
     /// `--report [DIR]`.
     pub report: Option<Option<&'a Path>>,
-}
-
-/// Refuse what the search cannot do yet: stock per site and at a depot, and
-/// a ready-units target (its chance is not in the search's surrogate).
-fn searchable(model: &Model) -> Result<(), CliError> {
-    if model.has_sites() || model.ready.is_some() {
-        return Err(CliError::user(format!(
-            "scenario `{}` has {}: the frontier search does not cover {} yet; use `wearout evaluate` to cost its named policies",
-            model.name,
-            if model.has_sites() {
-                "sites"
-            } else {
-                "a ready-units target"
-            },
-            if model.has_sites() {
-                "stock per site and at a depot"
-            } else {
-                "a ready-units target"
-            }
-        )));
-    }
-    Ok(())
 }
 
 /// Run `wearout frontier`.
@@ -74,7 +52,6 @@ pub fn run(args: &FrontierArgs<'_>, opts: &RunOpts, out: &mut dyn Write) -> Resu
 fn searched(args: &FrontierArgs<'_>, opts: &RunOpts, out: &mut dyn Write) -> Result<(), CliError> {
     let Prepared { loaded, target } = prepare(args.file, opts)?;
     let model = &loaded.model;
-    searchable(model)?;
     let space = model.search.as_ref().ok_or_else(|| {
         CliError::user(format!(
             "scenario `{}` has no [search] table, so there is nothing to search; add one (docs/scenario-format.md)",
@@ -120,7 +97,6 @@ fn given_list(
     let request = shard::request(opts, args.report.is_some())?;
     let Prepared { loaded, target } = prepare(args.file, opts)?;
     let model = &loaded.model;
-    searchable(model)?;
     if args.exhaustive || args.trials.is_some() {
         return Err(CliError::user(
             "--policies re-costs the given policies on the validation trials only; drop --exhaustive and --trials (use --validate-trials)",

@@ -9,7 +9,7 @@
 
 use wearout::frontier::FrontierResult;
 use wearout::mean_life::mean_life_plan;
-use wearout::model::Model;
+use wearout::model::{Measure, Model};
 use wearout::recost::NoiseFlags;
 use wearout::result::{EvaluateJson, FrontierJson, cost_measure_label};
 use wearout::scenario::Loaded;
@@ -540,15 +540,16 @@ fn units_up_rows(shares: &[f64]) -> Vec<Vec<String>> {
 pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     let cur = currency(&model.currency, " ", "");
     let mut s = String::new();
+    let (figure, column) = frontier_figure(model);
     s.push_str(&format!(
-        "Scenario `{}`: {} units over {} h, target availability {}\n",
+        "Scenario `{}`: {} units over {} h, target {figure} {}\n",
         model.name,
         model.units.len(),
         num(model.horizon, 0),
         pct(r.target)
     ));
     s.push_str(&format!(
-        "Cost measure: {}{cur} over the horizon. Chance = share of trials with availability >= {} (Wilson 95 % interval).\n\n",
+        "Cost measure: {}{cur} over the horizon. Chance = share of trials with {figure} >= {} (Wilson 95 % interval).\n\n",
         cost_measure_label(r.cost),
         pct(r.target)
     ));
@@ -556,7 +557,7 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
         "policy".to_string(),
         "chance [95 % interval]".into(),
         "cost ± se".into(),
-        "avail P10/P50/P90".into(),
+        column.into(),
         "stock capital".into(),
     ];
     for p in &model.parts {
@@ -566,7 +567,10 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     let mut rows = vec![header];
     for pt in &r.points {
         let c = &pt.costed;
-        let a = c.summary.availability();
+        let a = match model.measure() {
+            Measure::Availability => c.summary.availability(),
+            Measure::Readiness => c.summary.readiness(),
+        };
         let mut row = vec![
             c.policy.name.clone(),
             format!(
@@ -605,15 +609,25 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
         ));
         return cautioned(s);
     }
+    let how = if !j.exhaustive && (model.has_sites() || model.ready.is_some()) {
+        format!(
+            "{} policies scored on the two-echelon model",
+            num(st.surrogate_scored as f64, 0)
+        )
+    } else {
+        format!(
+            "{} single-part screening runs, {} policies scored on the surrogate, {} linear programs",
+            st.screening_runs,
+            num(st.surrogate_scored as f64, 0),
+            st.lps
+        )
+    };
     s.push_str(&format!(
-        "\nSearched {} of {} policies{} in full on {} search trials ({} single-part screening runs, {} policies scored on the surrogate, {} linear programs); re-costed {} of the {} search-frontier policies on {} fresh trials. Took {:.1} s (screening {:.1} s, search {:.1} s, validation {:.1} s).\n",
+        "\nSearched {} of {} policies{} in full on {} search trials ({how}); re-costed {} of the {} search-frontier policies on {} fresh trials. Took {:.1} s (screening {:.1} s, search {:.1} s, validation {:.1} s).\n",
         num(st.evaluated as f64, 0),
         num(r.space_size as f64, 0),
         if j.exhaustive { " (exhaustive)" } else { "" },
         num(r.search_trials as f64, 0),
-        st.screening_runs,
-        num(st.surrogate_scored as f64, 0),
-        st.lps,
         st.recosted,
         r.search_frontier.len(),
         num(r.validate_trials as f64, 0),
@@ -623,6 +637,16 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
         st.seconds_validation
     ));
     cautioned(s)
+}
+
+/// The per-trial figure the frontier's chance is of, for its header line,
+/// and its column's title: availability, or with a ready-units target the
+/// readiness (the share of the horizon with every site at its count).
+fn frontier_figure(model: &Model) -> (&'static str, &'static str) {
+    match model.measure() {
+        Measure::Availability => ("availability", "avail P10/P50/P90"),
+        Measure::Readiness => ("readiness", "ready P10/P50/P90"),
+    }
 }
 
 /// A share as a percentage with one decimal: 91.4 %.

@@ -31,8 +31,13 @@
 //! 5. **Re-costing** of those on fresh trials (disjoint trial indices) and
 //!    the frontier recomputed from the re-costed figures, with paired
 //!    noise flags between neighbours.
+//!
+//! A scenario with sites, a depot or a ready-units target is searched by
+//! `network` instead of steps 1 to 4 (the two-echelon model ranks the
+//! candidates; no screening runs), then re-costed by step 5.
 
 pub mod lp;
+mod network;
 
 use std::collections::{HashMap, HashSet};
 
@@ -179,10 +184,6 @@ pub enum FrontierError {
     NothingFits(f64),
     #[error("interrupted")]
     Interrupted,
-    #[error(
-        "the frontier search does not cover {0} yet; use `wearout evaluate` to cost the scenario's named policies"
-    )]
-    NotCovered(&'static str),
 }
 
 /// The options (rule x stock) of each part type.
@@ -199,11 +200,12 @@ impl Options {
             .iter()
             .map(|ps| {
                 let mut v = Vec::new();
+                let stocks = network::stock_choices(ps);
                 for &rule in &ps.rules {
-                    for stock in ps.stock_min..=ps.stock_max {
+                    for stock in &stocks {
                         v.push(PartPolicy {
                             rule,
-                            stock: Stock::single(stock),
+                            stock: stock.clone(),
                         });
                     }
                 }
@@ -362,17 +364,14 @@ pub fn search(
     progress: &dyn Progress,
 ) -> Result<FrontierResult, FrontierError> {
     let space = model.search.as_ref().ok_or(FrontierError::NoSearchSpace)?;
-    if model.has_sites() {
-        return Err(FrontierError::NotCovered("stock per site and at a depot"));
-    }
-    if model.ready.is_some() {
-        return Err(FrontierError::NotCovered("a ready-units target"));
-    }
-    let options = Options::new(model).ok_or(FrontierError::NoSearchSpace)?;
     let mut stats = SearchStats::default();
     let searched = if config.exhaustive {
+        let options = Options::new(model).ok_or(FrontierError::NoSearchSpace)?;
         simulate_every_policy(model, space, &options, config, progress, &mut stats)?
+    } else if network::applies(model) {
+        network::search(model, space, config, progress, &mut stats)?
     } else {
+        let options = Options::new(model).ok_or(FrontierError::NoSearchSpace)?;
         search_on_the_surrogate(model, space, &options, config, progress, &mut stats)?
     };
     recost_the_frontier(model, space, config, searched, progress, stats)
