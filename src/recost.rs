@@ -30,6 +30,11 @@ pub fn validation_range(validate_trials: u64) -> Range<u64> {
     VALIDATION_OFFSET..VALIDATION_OFFSET.saturating_add(validate_trials)
 }
 
+/// The chance levels the reports quote (the cheapest policy for each is
+/// listed), and the thinning of the search frontier keeps the candidates
+/// for: 50, 60, 70, 80, 90, 95 and 99 %.
+pub const CHANCE_LEVELS: [f64; 7] = [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99];
+
 /// A policy with its figures on one set of trials.
 #[derive(Debug, Clone)]
 pub struct Costed {
@@ -154,6 +159,82 @@ pub fn frontier_points(
         points.push(FrontierPoint { costed, noise });
     }
     points
+}
+
+/// A move from a named policy to a frontier policy, with the paired
+/// differences (the frontier policy's figures minus the named one's) on
+/// the same trials.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Move {
+    /// Index into the frontier's points.
+    pub to: usize,
+    pub diff: NoiseFlags,
+}
+
+/// Where a named policy of the scenario stands against the frontier,
+/// re-costed on the same trials as the frontier's policies.
+#[derive(Debug, Clone)]
+pub struct Standing {
+    pub costed: Costed,
+    /// The frontier policy that sets exactly the same, if any.
+    pub same_as: Option<usize>,
+    /// The cheapest frontier policy with at least its chance (when it also
+    /// costs no more, the named policy is dominated by it).
+    pub up: Option<Move>,
+    /// The frontier policy with the most chance among those costing no
+    /// more than it.
+    pub down: Option<Move>,
+}
+
+impl Standing {
+    /// The frontier policy that dominates it (no dearer, no less likely to
+    /// meet the target, better on one of the two), the one saving most.
+    pub fn dominated_by(&self, points: &[FrontierPoint]) -> Option<usize> {
+        if self.same_as.is_some() {
+            return None;
+        }
+        let m = self.up?;
+        let p = &points[m.to].costed;
+        let (c, k) = (self.costed.cost.mean, self.costed.chance.value);
+        (p.cost.mean <= c && p.chance.value >= k && (p.cost.mean < c || p.chance.value > k))
+            .then_some(m.to)
+    }
+}
+
+/// Where `named` stands against the frontier `points` (re-costed on the
+/// same trials): the same policy, or the nearest frontier policies above
+/// and below it in chance, with paired differences.
+pub fn standing(named: Costed, points: &[FrontierPoint], measure: CostMeasure) -> Standing {
+    let same_as = points
+        .iter()
+        .position(|p| p.costed.policy.parts == named.policy.parts);
+    let (c, k) = (named.cost.mean, named.chance.value);
+    let to = |i: usize| Move {
+        to: i,
+        diff: paired_noise(&named.summary, &points[i].costed.summary, measure),
+    };
+    let up = points
+        .iter()
+        .position(|p| p.costed.chance.value >= k)
+        .map(to);
+    let down = points
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| p.costed.cost.mean <= c)
+        .max_by(|a, b| {
+            a.1.costed
+                .chance
+                .value
+                .total_cmp(&b.1.costed.chance.value)
+                .then(b.0.cmp(&a.0))
+        })
+        .map(|(i, _)| to(i));
+    Standing {
+        costed: named,
+        same_as,
+        up,
+        down,
+    }
 }
 
 /// Paired noise flags between two policies on the same trials.

@@ -554,8 +554,10 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     ));
     let mut header = vec![
         "policy".to_string(),
+        "code".into(),
         "chance [95 % interval]".into(),
         "cost ± se".into(),
+        "total with penalty".into(),
         "avail P10/P50/P90".into(),
         "stock capital".into(),
     ];
@@ -564,11 +566,12 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     }
     header.push("vs previous".into());
     let mut rows = vec![header];
-    for pt in &r.points {
+    for (pt, pj) in r.points.iter().zip(&j.policies) {
         let c = &pt.costed;
         let a = c.summary.availability();
         let mut row = vec![
             c.policy.name.clone(),
+            pj.code.clone(),
             format!(
                 "{} [{}, {}]",
                 pct(c.chance.value),
@@ -576,6 +579,7 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
                 pct(c.chance.hi)
             ),
             format!("{} ± {}", money(c.cost.mean), money(c.cost.se)),
+            money(pj.total_with_penalty),
             format!(
                 "{:.1}/{:.1}/{:.1} %",
                 100.0 * a.p10,
@@ -593,6 +597,53 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     s.push_str(&table(&rows));
     s.push_str("\nRules: RTF run to failure, A<h> age replacement at h operating hours, B<h> block replacement every h unit operating hours; S<n> base-stock level.\n");
     s.push_str("\"same within noise\": the paired difference from the row above, on the same trials, is within two standard errors; do not pay for it.\n");
+    s.push_str("Code: six characters from what the policy sets, the same in every run of this scenario (F-numbers are not). Total with penalty: mean spend without capital plus the downtime penalty.\n");
+    if let Some(ct) = &j.cheapest_on_total {
+        s.push_str(&format!("\n{}\n", ct.words));
+    }
+    if !j.named_policies.is_empty() {
+        s.push_str(&format!(
+            "\nThe scenario's named policies, re-costed on the same {} fresh trials\n",
+            num(r.validate_trials as f64, 0)
+        ));
+        let mut rows = vec![vec![
+            "policy".to_string(),
+            "code".into(),
+            "chance [95 % interval]".into(),
+            "cost ± se".into(),
+            "total with penalty".into(),
+            "standing".into(),
+        ]];
+        for n in &j.named_policies {
+            rows.push(vec![
+                n.name.clone(),
+                n.code.clone(),
+                format!(
+                    "{} [{}, {}]",
+                    pct(n.chance.value),
+                    pct(n.chance.lo),
+                    pct(n.chance.hi)
+                ),
+                format!("{} ± {}", money(n.cost.mean), money(n.cost.se)),
+                money(n.total_with_penalty),
+                match (&n.same_as, &n.dominated_by) {
+                    (Some(f), _) => format!("= {f}"),
+                    (None, Some(f)) => format!("dominated by {f}"),
+                    (None, None) => "not dominated".into(),
+                },
+            ]);
+        }
+        s.push_str(&table(&rows));
+        for n in &j.named_policies {
+            s.push_str(&format!("- {}\n", n.words));
+        }
+    }
+    if !j.bounds_reached.is_empty() {
+        s.push_str("\nSearch bounds reached\n");
+        for b in &j.bounds_reached {
+            s.push_str(&format!("- {}\n", b.words));
+        }
+    }
     let st = &r.stats;
     if r.search_trials == 0 {
         // `--policies`: a fixed list re-costed, no search.
@@ -606,7 +657,7 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
         return cautioned(s);
     }
     s.push_str(&format!(
-        "\nSearched {} of {} policies{} in full on {} search trials ({} single-part screening runs, {} policies scored on the surrogate, {} linear programs); re-costed {} of the {} search-frontier policies on {} fresh trials. Took {:.1} s (screening {:.1} s, search {:.1} s, validation {:.1} s).\n",
+        "\nSearched {} of {} policies{} in full on {} search trials ({} single-part screening runs, {} policies scored on the surrogate, {} linear programs); re-costed {} on {} fresh trials. Took {:.1} s (screening {:.1} s, search {:.1} s, validation {:.1} s).\n",
         num(st.evaluated as f64, 0),
         num(r.space_size as f64, 0),
         if j.exhaustive { " (exhaustive)" } else { "" },
@@ -614,8 +665,7 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
         st.screening_runs,
         num(st.surrogate_scored as f64, 0),
         st.lps,
-        st.recosted,
-        r.search_frontier.len(),
+        j.recosted.why,
         num(r.validate_trials as f64, 0),
         j.seconds,
         st.seconds_screening,

@@ -16,7 +16,7 @@ use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
 use crate::text::{currency, num};
 
 /// Chance levels the words and the level table speak of.
-pub const LEVELS: [f64; 7] = [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99];
+pub const LEVELS: [f64; 7] = crate::recost::CHANCE_LEVELS;
 
 /// The levels whose cheapest policies the figures single out.
 const CHOSEN_LEVELS: [f64; 4] = [0.5, 0.8, 0.9, 0.95];
