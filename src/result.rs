@@ -640,6 +640,119 @@ fn standing_words(n: &NamedJson, cur: &str) -> String {
     s
 }
 
+/// A paired difference as JSON.
+#[derive(Debug, Clone, Copy, Serialize, PartialEq)]
+pub struct DiffJson {
+    /// Mean of the per-trial differences and its standard error.
+    pub diff: MeanSe,
+    /// |diff| at most two standard errors.
+    pub within_noise: bool,
+}
+
+impl From<crate::recost::PairedDiff> for DiffJson {
+    fn from(d: crate::recost::PairedDiff) -> Self {
+        DiffJson {
+            diff: d.diff,
+            within_noise: d.within_noise,
+        }
+    }
+}
+
+/// One policy of a comparison.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct ComparedJson {
+    pub name: String,
+    pub code: String,
+    pub describe: String,
+    /// Chance of meeting the target in force.
+    pub chance: Chance,
+    pub availability: MeanSe,
+    /// With the downtime penalty, without capital.
+    pub total: MeanSe,
+    /// Parts, labour, holding and the initial stock's capital.
+    pub spend: MeanSe,
+    pub initial_stock_capital: f64,
+}
+
+/// One policy against the first, paired on the same trials (this one
+/// minus the first).
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct PairJson {
+    pub policy: String,
+    pub against: String,
+    pub total: DiffJson,
+    pub spend: DiffJson,
+    pub chance: DiffJson,
+    pub availability: DiffJson,
+}
+
+/// The result of `wearout evaluate --policy A --policy B ...`.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct CompareJson {
+    pub scenario: String,
+    pub trials: u64,
+    pub first_trial: u64,
+    pub seed: u64,
+    pub target: f64,
+    /// What the target in force is of: `availability` or `readiness`.
+    pub target_measure: &'static str,
+    pub parameter_uncertainty: bool,
+    pub policies: Vec<ComparedJson>,
+    /// Every policy after the first against the first.
+    pub differences: Vec<PairJson>,
+}
+
+impl CompareJson {
+    /// Build from summaries of the same trials, the first the baseline.
+    pub fn new(model: &Model, summaries: &[Summary]) -> Self {
+        let first = &summaries[0];
+        let policies = summaries
+            .iter()
+            .map(|s| ComparedJson {
+                name: s.policy.name.clone(),
+                code: s.policy.code(model),
+                describe: s.policy.describe(model),
+                chance: s.chance(),
+                availability: MeanSe::from(&s.acc.availability),
+                total: MeanSe::from(&s.acc.total),
+                spend: MeanSe {
+                    mean: s.acc.spend.mean() + s.initial_stock_capital,
+                    se: s.acc.spend.se(),
+                },
+                initial_stock_capital: s.initial_stock_capital,
+            })
+            .collect();
+        let differences = summaries[1..]
+            .iter()
+            .map(|s| {
+                let p = crate::recost::paired(first, s);
+                PairJson {
+                    policy: s.policy.name.clone(),
+                    against: first.policy.name.clone(),
+                    total: p.total.into(),
+                    spend: p.spend.into(),
+                    chance: p.chance.into(),
+                    availability: p.availability.into(),
+                }
+            })
+            .collect();
+        CompareJson {
+            scenario: model.name.clone(),
+            trials: first.trials(),
+            first_trial: first.first_trial,
+            seed: model.seed,
+            target: first.target,
+            target_measure: match first.measure {
+                Measure::Availability => "availability",
+                Measure::Readiness => "readiness",
+            },
+            parameter_uncertainty: model.parameter_uncertainty,
+            policies,
+            differences,
+        }
+    }
+}
+
 /// Why the re-costed policies are the ones they are, in words.
 pub fn recosted_words(r: &crate::frontier::FrontierResult) -> String {
     let st = &r.stats;

@@ -11,7 +11,7 @@ use wearout::frontier::FrontierResult;
 use wearout::mean_life::mean_life_plan;
 use wearout::model::Model;
 use wearout::recost::NoiseFlags;
-use wearout::result::{EvaluateJson, FrontierJson, cost_measure_label};
+use wearout::result::{CompareJson, DiffJson, EvaluateJson, FrontierJson, cost_measure_label};
 use wearout::scenario::Loaded;
 use wearout::summary::{AvailabilityFigures, Chance, MeanSe};
 use wearout::text::{CAUTION, currency, money, num};
@@ -672,6 +672,90 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
         st.seconds_search,
         st.seconds_validation
     ));
+    cautioned(s)
+}
+
+/// The table of `evaluate --policy A --policy B ...`: each policy's
+/// figures, then each one's paired differences from the first.
+pub fn compare(model: &Model, j: &CompareJson) -> String {
+    let cur = currency(&model.currency, " (", ")");
+    let what = if j.target_measure == "readiness" {
+        "readiness"
+    } else {
+        "availability"
+    };
+    let mut s = format!(
+        "Scenario `{}`: {} policies on the same {} trials (seed {}), target {what} {}\n\n",
+        j.scenario,
+        j.policies.len(),
+        num(j.trials as f64, 0),
+        j.seed,
+        pct(j.target)
+    );
+    let mut rows = vec![vec![
+        "policy".to_string(),
+        "code".into(),
+        "chance [95 % interval]".into(),
+        "availability mean ± se".into(),
+        format!("total with penalty{cur} ± se"),
+        format!("spend{cur} ± se"),
+    ]];
+    for p in &j.policies {
+        rows.push(vec![
+            p.name.clone(),
+            p.code.clone(),
+            format!(
+                "{} [{}, {}]",
+                pct(p.chance.value),
+                pct(p.chance.lo),
+                pct(p.chance.hi)
+            ),
+            format!(
+                "{} ± {}",
+                pct2(p.availability.mean),
+                pct2(p.availability.se)
+            ),
+            format!("{} ± {}", money(p.total.mean), money(p.total.se)),
+            format!("{} ± {}", money(p.spend.mean), money(p.spend.se)),
+        ]);
+    }
+    s.push_str(&table(&rows));
+    let first = &j.policies[0].name;
+    s.push_str(&format!(
+        "\nPaired differences from `{first}` (this policy minus `{first}`, trial by trial), ± the standard error of the difference\n"
+    ));
+    let mut rows = vec![vec![
+        "policy".to_string(),
+        "chance".into(),
+        "availability".into(),
+        format!("total with penalty{cur}"),
+        format!("spend{cur}"),
+    ]];
+    let cell = |d: &DiffJson, f: &dyn Fn(f64) -> String| {
+        format!(
+            "{}{} ± {}{}",
+            if d.diff.mean > 0.0 { "+" } else { "" },
+            f(d.diff.mean),
+            f(d.diff.se),
+            if d.within_noise { " (noise)" } else { "" }
+        )
+    };
+    let points = |x: f64| format!("{:.1} pt", 100.0 * x);
+    let points2 = |x: f64| format!("{:.2} pt", 100.0 * x);
+    for d in &j.differences {
+        rows.push(vec![
+            d.policy.clone(),
+            cell(&d.chance, &points),
+            cell(&d.availability, &points2),
+            cell(&d.total, &money),
+            cell(&d.spend, &money),
+        ]);
+    }
+    s.push_str(&table(&rows));
+    s.push_str("\n(noise): the difference is within two standard errors of the paired difference: these trials cannot tell the two policies apart on that figure. pt: percentage points.\n");
+    for p in &j.policies {
+        s.push_str(&format!("{} ({}): {}\n", p.name, p.code, p.describe));
+    }
     cautioned(s)
 }
 
