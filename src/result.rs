@@ -915,8 +915,9 @@ impl FrontierJson {
                 let n = b.policies.len();
                 BoundJson {
                     words: format!(
-                        "{part}: {n} of the {} frontier policies sit at {what} ({}); a wider search may reach a higher chance more cheaply: {wider} in [search.parts.{part}].",
+                        "{part}: {n} of the {} frontier policies {} at {what} ({}); a wider search may reach a higher chance more cheaply: {wider} in [search.parts.{part}].",
                         r.points.len(),
+                        if n == 1 { "sits" } else { "sit" },
                         b.policies.join(", ")
                     ),
                     part,
