@@ -180,6 +180,8 @@ pub struct EvaluateJson {
     pub first_trial: u64,
     pub seed: u64,
     pub policy: String,
+    /// The policy's stable code (`Policy::code`).
+    pub policy_code: String,
     pub target: f64,
     pub horizon_hours: f64,
     pub units: usize,
@@ -228,6 +230,7 @@ impl EvaluateJson {
             first_trial: s.first_trial,
             seed: model.seed,
             policy: policy.name.clone(),
+            policy_code: policy.code(model),
             target: s.target,
             horizon_hours: model.horizon,
             units: model.units.len(),

@@ -7,9 +7,10 @@ mod common;
 
 use common::{Ran, load, run_wearout, scenario_path};
 
-use wearout::frontier::{FrontierConfig, search, thin_spread};
+use wearout::frontier::{Bound, FrontierConfig, search, thin_spread};
 use wearout::model::{Policy, Rule};
 use wearout::recost::{self, CHANCE_LEVELS, paired, recost, validation_range};
+use wearout::result::FrontierJson;
 use wearout::run::{Quiet, evaluate};
 
 fn config(search_trials: u64, validate_trials: u64, target: f64, max: usize) -> FrontierConfig {
@@ -251,4 +252,67 @@ fn frontier_policies_reads_the_scenario_field_names() {
         m.policy("current").unwrap().parts[1].rule,
         Rule::Age(8000.0)
     );
+}
+
+/// A stock range too narrow for the target: the frontier's safer policies
+/// sit at its top, and the result says so (part type, bound, policies), in
+/// the JSON too; every frontier policy at a listed bound is listed.
+#[test]
+fn bounds_that_bind_are_named() {
+    let mut m = load("demo");
+    let door = m.part_id("door_drive").unwrap();
+    m.search.as_mut().unwrap().parts[door].stock_max = 1;
+    let r = search(&m, &config(200, 300, m.target, 12), &Quiet).unwrap();
+    let at_top: Vec<String> = r
+        .points
+        .iter()
+        .filter(|p| p.costed.policy.parts[door].stock.total() == 1)
+        .map(|p| p.costed.policy.name.clone())
+        .collect();
+    assert!(!at_top.is_empty());
+    let b = r
+        .bounds
+        .iter()
+        .find(|b| b.part == door && b.bound == Bound::StockMax(1))
+        .expect("door_drive's largest stock is reported");
+    assert_eq!(b.policies, at_top);
+    for b in &r.bounds {
+        for name in &b.policies {
+            let p = r
+                .points
+                .iter()
+                .find(|p| &p.costed.policy.name == name)
+                .unwrap();
+            let pp = &p.costed.policy.parts[b.part];
+            match b.bound {
+                Bound::StockMax(s) | Bound::StockMin(s) => assert_eq!(pp.stock.total(), s),
+                Bound::IntervalMax(_, t) | Bound::IntervalMin(_, t) => {
+                    assert_eq!(pp.rule.interval(), Some(t));
+                }
+            }
+        }
+    }
+    let j = FrontierJson::new(&m, &r, false);
+    let door_json = j
+        .bounds_reached
+        .iter()
+        .find(|b| b.part == "door_drive" && b.bound == "stock_max")
+        .unwrap();
+    assert_eq!(door_json.value, 1.0);
+    assert!(door_json.words.contains("door_drive") && door_json.words.contains("largest stock"));
+    // The JSON says how many were re-costed and why, and names the
+    // cheapest on the total with the penalty.
+    assert_eq!(j.recosted.total, r.stats.recosted);
+    assert!(!j.recosted.why.is_empty());
+    let ct = j.cheapest_on_total.as_ref().unwrap();
+    let least = r
+        .points
+        .iter()
+        .map(|p| p.costed.summary.acc.total.mean())
+        .fold(f64::INFINITY, f64::min);
+    assert_eq!(ct.total_with_penalty, least);
+    assert_eq!(j.named_policies.len(), m.policies.len());
+    for (p, pj) in r.points.iter().zip(&j.policies) {
+        assert_eq!(pj.code, p.costed.policy.code(&m));
+    }
 }

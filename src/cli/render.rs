@@ -231,9 +231,10 @@ pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
     let cur = currency(&model.currency, " (", ")");
     let mut s = String::new();
     s.push_str(&format!(
-        "Scenario `{}`, policy `{}`: {} trials (seed {}), {} units over {} h{}\n\n",
+        "Scenario `{}`, policy `{}` ({}): {} trials (seed {}), {} units over {} h{}\n\n",
         j.scenario,
         j.policy,
+        j.policy_code,
         num(j.trials as f64, 0),
         j.seed,
         j.units,
