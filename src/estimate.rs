@@ -528,7 +528,11 @@ pub fn frontier(model: &Model, config: &FrontierConfig, threads: usize) -> Estim
         (k * n, k * n * policy_nanos, k * n)
     };
     let v = config.validate_trials as f64;
-    let k = config.max_frontier as f64;
+    // The spread over the chance range, two more around each quoted
+    // chance level, a close neighbour of each, and the scenario's named
+    // policies (`frontier::thin`); a dense frontier may re-cost more.
+    let k = (2 * (config.max_frontier + 2 * crate::recost::CHANCE_LEVELS.len())
+        + model.policies.len()) as f64;
     let runs = screen_runs + search_runs + k * v;
     let nanos = screen_nanos + search_nanos + k * v * policy_nanos;
     let options: f64 = space

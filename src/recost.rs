@@ -30,6 +30,11 @@ pub fn validation_range(validate_trials: u64) -> Range<u64> {
     VALIDATION_OFFSET..VALIDATION_OFFSET.saturating_add(validate_trials)
 }
 
+/// The chance levels the reports quote (the cheapest policy for each is
+/// listed), and the thinning of the search frontier keeps the candidates
+/// for: 50, 60, 70, 80, 90, 95 and 99 %.
+pub const CHANCE_LEVELS: [f64; 7] = [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99];
+
 /// A policy with its figures on one set of trials.
 #[derive(Debug, Clone)]
 pub struct Costed {
@@ -156,6 +161,82 @@ pub fn frontier_points(
     points
 }
 
+/// A move from a named policy to a frontier policy, with the paired
+/// differences (the frontier policy's figures minus the named one's) on
+/// the same trials.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Move {
+    /// Index into the frontier's points.
+    pub to: usize,
+    pub diff: NoiseFlags,
+}
+
+/// Where a named policy of the scenario stands against the frontier,
+/// re-costed on the same trials as the frontier's policies.
+#[derive(Debug, Clone)]
+pub struct Standing {
+    pub costed: Costed,
+    /// The frontier policy that sets exactly the same, if any.
+    pub same_as: Option<usize>,
+    /// The cheapest frontier policy with at least its chance (when it also
+    /// costs no more, the named policy is dominated by it).
+    pub up: Option<Move>,
+    /// The frontier policy with the most chance among those costing no
+    /// more than it.
+    pub down: Option<Move>,
+}
+
+impl Standing {
+    /// The frontier policy that dominates it (no dearer, no less likely to
+    /// meet the target, better on one of the two), the one saving most.
+    pub fn dominated_by(&self, points: &[FrontierPoint]) -> Option<usize> {
+        if self.same_as.is_some() {
+            return None;
+        }
+        let m = self.up?;
+        let p = &points[m.to].costed;
+        let (c, k) = (self.costed.cost.mean, self.costed.chance.value);
+        (p.cost.mean <= c && p.chance.value >= k && (p.cost.mean < c || p.chance.value > k))
+            .then_some(m.to)
+    }
+}
+
+/// Where `named` stands against the frontier `points` (re-costed on the
+/// same trials): the same policy, or the nearest frontier policies above
+/// and below it in chance, with paired differences.
+pub fn standing(named: Costed, points: &[FrontierPoint], measure: CostMeasure) -> Standing {
+    let same_as = points
+        .iter()
+        .position(|p| p.costed.policy.parts == named.policy.parts);
+    let (c, k) = (named.cost.mean, named.chance.value);
+    let to = |i: usize| Move {
+        to: i,
+        diff: paired_noise(&named.summary, &points[i].costed.summary, measure),
+    };
+    let up = points
+        .iter()
+        .position(|p| p.costed.chance.value >= k)
+        .map(to);
+    let down = points
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| p.costed.cost.mean <= c)
+        .max_by(|a, b| {
+            a.1.costed
+                .chance
+                .value
+                .total_cmp(&b.1.costed.chance.value)
+                .then(b.0.cmp(&a.0))
+        })
+        .map(|(i, _)| to(i));
+    Standing {
+        costed: named,
+        same_as,
+        up,
+        down,
+    }
+}
+
 /// Paired noise flags between two policies on the same trials.
 pub fn paired_noise(a: &Summary, b: &Summary, measure: CostMeasure) -> NoiseFlags {
     let n = a.trials().min(b.trials()) as usize;
@@ -176,6 +257,66 @@ pub fn paired_noise(a: &Summary, b: &Summary, measure: CostMeasure) -> NoiseFlag
         cost_within_noise: cost_diff.mean.abs() <= 2.0 * cost_diff.se,
         chance_diff,
         cost_diff,
+    }
+}
+
+/// A paired difference (`b - a`, trial by trial on the same trials): its
+/// mean, the standard error of that mean, and whether it is inside the
+/// noise (|mean| at most two standard errors).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PairedDiff {
+    pub diff: MeanSe,
+    pub within_noise: bool,
+}
+
+impl PairedDiff {
+    fn of(xs: impl Iterator<Item = f64>) -> Self {
+        let mut m = crate::summary::Moments::default();
+        for x in xs {
+            m.push(x);
+        }
+        let diff = MeanSe::from(&m);
+        PairedDiff {
+            diff,
+            within_noise: diff.mean.abs() <= 2.0 * diff.se,
+        }
+    }
+}
+
+/// Two policies compared on the same trials: each figure of `b` minus the
+/// same of `a`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Paired {
+    /// Total with the downtime penalty, without capital.
+    pub total: PairedDiff,
+    /// Spend: parts, labour, holding and the initial stock's capital.
+    pub spend: PairedDiff,
+    /// Whether the trial met the target (1 or 0): its mean is the
+    /// difference of the chances.
+    pub chance: PairedDiff,
+    /// The trial's fleet availability.
+    pub availability: PairedDiff,
+}
+
+/// Paired differences of `b` from `a`, costed on the same trials (the
+/// standard error of a paired difference is the standard deviation of the
+/// per-trial differences over the square root of the trial count, the
+/// paired t-statistic's denominator: Student 1908, any statistics text).
+pub fn paired(a: &Summary, b: &Summary) -> Paired {
+    let n = a.trials().min(b.trials()) as usize;
+    let (aa, ab) = (&a.acc.trial_availability, &b.acc.trial_availability);
+    let diff_of = |x: &[f64], y: &[f64]| PairedDiff::of((0..n).map(|t| y[t] - x[t]));
+    // The target in force: availability, or readiness with a ready-units
+    // target.
+    let met = |s: &Summary, t: usize| f64::from(u8::from(s.trial_measure()[t] >= s.target));
+    Paired {
+        total: diff_of(&a.acc.trial_total, &b.acc.trial_total),
+        spend: diff_of(
+            &a.trial_costs(crate::model::CostBasis::Spend),
+            &b.trial_costs(crate::model::CostBasis::Spend),
+        ),
+        chance: PairedDiff::of((0..n).map(|t| met(b, t) - met(a, t))),
+        availability: diff_of(aa, ab),
     }
 }
 
@@ -201,9 +342,19 @@ pub fn measure(model: &Model) -> CostMeasure {
 }
 
 /// Read a list of policies: the JSON of `wearout frontier --json` (its
-/// `policies`), or a bare array of such entries. Each entry needs `rules`
-/// (part type -> `{"rule": ..., "interval": hours or null}`) and `stock`
-/// (part type -> level) for every part type of `model`; `name` is optional.
+/// `policies`), a bare array of such entries, or an object of named
+/// entries (`{"policies": {"today": {...}, "planned": {...}}}`, as the
+/// scenario's `[policies.NAME]`). An entry takes either form:
+///
+/// - the scenario file's: one field per part type, each
+///   `{"rule": ..., "interval_hours": hours, "stock": level}`
+///   (`interval_fraction` of the characteristic life instead of
+///   `interval_hours`, as in the scenario);
+/// - the frontier JSON's: `rules` (part type -> `{"rule": ...,
+///   "interval": hours or null}`) and `stock` (part type -> level).
+///
+/// Every part type of `model` needs a rule and a stock; `name` is
+/// optional (an object's key names its entry).
 ///
 /// # Errors
 /// A [`PoliciesError`] naming the file, the entry and field, and what is
@@ -222,23 +373,24 @@ pub fn parse_policies(model: &Model, file: &str, text: &str) -> Result<Vec<Polic
             ),
         )
     })?;
-    let list = match &root {
-        Value::Array(a) => a,
+    let listed = |a: &'_ Vec<Value>| -> Vec<(String, Option<String>, Value)> {
+        a.iter()
+            .enumerate()
+            .map(|(i, v)| (format!("policies[{i}]"), None, v.clone()))
+            .collect()
+    };
+    let shape = "expected an object with a `policies` array (the output of `wearout frontier --json`) or object of named policies, or an array of policies";
+    let list: Vec<(String, Option<String>, Value)> = match &root {
+        Value::Array(a) => listed(a),
         Value::Object(o) => match o.get("policies") {
-            Some(Value::Array(a)) => a,
-            _ => {
-                return Err(err(
-                    String::new(),
-                    "expected an object with a `policies` array (the output of `wearout frontier --json`), or an array of policies".into(),
-                ));
-            }
+            Some(Value::Array(a)) => listed(a),
+            Some(Value::Object(named)) => named
+                .iter()
+                .map(|(k, v)| (format!("policies.{k}"), Some(k.clone()), v.clone()))
+                .collect(),
+            _ => return Err(err(String::new(), shape.into())),
         },
-        _ => {
-            return Err(err(
-                String::new(),
-                "expected an object with a `policies` array, or an array of policies".into(),
-            ));
-        }
+        _ => return Err(err(String::new(), shape.into())),
     };
     if list.is_empty() {
         return Err(err(
@@ -257,93 +409,161 @@ pub fn parse_policies(model: &Model, file: &str, text: &str) -> Result<Vec<Polic
     }
     let names: Vec<&str> = model.parts.iter().map(|p| p.name.as_str()).collect();
     let mut out = Vec::with_capacity(list.len());
-    for (i, entry) in list.iter().enumerate() {
-        let at = format!("policies[{i}]");
+    for (i, (at, key_name, entry)) in list.iter().enumerate() {
+        let at = at.as_str();
         let obj = entry.as_object().ok_or_else(|| {
             err(
-                at.clone(),
-                "expected an object with `rules` and `stock`".into(),
+                at.to_string(),
+                "expected an object: one field per part type (`{\"rule\": ..., \"interval_hours\": ..., \"stock\": ...}`), or `rules` and `stock`".into(),
             )
         })?;
-        let name = match obj.get("name") {
-            None | Some(Value::Null) => format!("P{}", i + 1),
-            Some(Value::String(s)) if !s.is_empty() && s.len() <= 200 => s.clone(),
-            Some(_) => {
+        let name = match (key_name, obj.get("name")) {
+            (Some(k), _) if !k.is_empty() && k.len() <= 200 => k.clone(),
+            (Some(_), _) => {
+                return Err(err(
+                    at.to_string(),
+                    "expected a short name (1 to 200 characters)".into(),
+                ));
+            }
+            (None, None | Some(Value::Null)) => format!("P{}", i + 1),
+            (None, Some(Value::String(s))) if !s.is_empty() && s.len() <= 200 => s.clone(),
+            (None, Some(_)) => {
                 return Err(err(
                     format!("{at}.name"),
                     "expected a short text name (1 to 200 characters)".into(),
                 ));
             }
         };
-        let table = |key: &str| {
-            let t = obj.get(key).and_then(Value::as_object).ok_or_else(|| {
-                err(
-                    format!("{at}.{key}"),
-                    format!(
-                        "expected an object with one entry per part type ({})",
-                        names.join(", ")
-                    ),
-                )
-            })?;
-            for k in t.keys() {
-                if !names.contains(&k.as_str()) {
-                    let hint = crate::scenario::did_you_mean(k, names.iter().copied());
-                    return Err(err(
-                        format!("{at}.{key}.{k}"),
+        let unknown = |path: String, k: &str| {
+            let hint = crate::scenario::did_you_mean(k, names.iter().copied());
+            err(
+                path,
+                format!(
+                    "the scenario has no part type `{k}`{hint}; part types: {}",
+                    names.join(", ")
+                ),
+            )
+        };
+        let stock_of = |v: &Value, path: String| {
+            v.as_u64()
+                .filter(|&s| s <= MAX_STOCK)
+                .map(|s| Stock::single(s as u32))
+                .ok_or_else(|| {
+                    err(
+                        path,
+                        format!("expected a whole number from 0 to {MAX_STOCK} (got {v})"),
+                    )
+                })
+        };
+        let mut parts = Vec::with_capacity(model.parts.len());
+        if obj.contains_key("rules") {
+            // The frontier JSON's form.
+            let table = |key: &str| {
+                let t = obj.get(key).and_then(Value::as_object).ok_or_else(|| {
+                    err(
+                        format!("{at}.{key}"),
                         format!(
-                            "the scenario has no part type `{k}`{hint}; part types: {}",
+                            "expected an object with one entry per part type ({})",
                             names.join(", ")
                         ),
-                    ));
+                    )
+                })?;
+                for k in t.keys() {
+                    if !names.contains(&k.as_str()) {
+                        return Err(unknown(format!("{at}.{key}.{k}"), k));
+                    }
+                }
+                Ok(t)
+            };
+            let rules = table("rules")?;
+            let stock = table("stock")?;
+            for pt in &model.parts {
+                let p = &pt.name;
+                let r = rules.get(p).ok_or_else(|| {
+                    err(
+                        format!("{at}.rules"),
+                        format!("part type `{p}` has no rule; every part type needs one"),
+                    )
+                })?;
+                let rule = read_rule(r, pt.life.characteristic_life())
+                    .map_err(|(field, m)| err(format!("{at}.rules.{p}{field}"), m))?;
+                let s = stock.get(p).ok_or_else(|| {
+                    err(
+                        format!("{at}.stock"),
+                        format!("part type `{p}` has no stock level; every part type needs one"),
+                    )
+                })?;
+                parts.push(PartPolicy {
+                    rule,
+                    stock: stock_of(s, format!("{at}.stock.{p}"))?,
+                });
+            }
+        } else {
+            // The scenario file's form.
+            for k in obj.keys() {
+                if k != "name" && !names.contains(&k.as_str()) {
+                    return Err(unknown(format!("{at}.{k}"), k));
                 }
             }
-            Ok(t)
-        };
-        let rules = table("rules")?;
-        let stock = table("stock")?;
-        let mut parts = Vec::with_capacity(model.parts.len());
-        for pt in &model.parts {
-            let p = &pt.name;
-            let r = rules.get(p).ok_or_else(|| {
-                err(
-                    format!("{at}.rules"),
-                    format!("part type `{p}` has no rule; every part type needs one"),
-                )
-            })?;
-            let rule =
-                read_rule(r).map_err(|(field, m)| err(format!("{at}.rules.{p}{field}"), m))?;
-            let s = stock.get(p).ok_or_else(|| {
-                err(
-                    format!("{at}.stock"),
-                    format!("part type `{p}` has no stock level; every part type needs one"),
-                )
-            })?;
-            let s = s.as_u64().filter(|&s| s <= MAX_STOCK).ok_or_else(|| {
-                err(
-                    format!("{at}.stock.{p}"),
-                    format!("expected a whole number from 0 to {MAX_STOCK} (got {s})"),
-                )
-            })?;
-            parts.push(PartPolicy {
-                rule,
-                stock: Stock::single(s as u32),
-            });
+            for pt in &model.parts {
+                let p = &pt.name;
+                let v = obj.get(p).ok_or_else(|| {
+                    err(
+                        at.to_string(),
+                        format!(
+                            "part type `{p}` has no entry; every part type needs one, e.g. \"{p}\": {{\"rule\": \"age\", \"interval_hours\": 8000, \"stock\": 1}} (or give `rules` and `stock` as `wearout frontier --json` writes them)"
+                        ),
+                    )
+                })?;
+                let rule = read_rule(v, pt.life.characteristic_life())
+                    .map_err(|(field, m)| err(format!("{at}.{p}{field}"), m))?;
+                let s = v.get("stock").ok_or_else(|| {
+                    err(
+                        format!("{at}.{p}.stock"),
+                        "missing; give the base-stock level, a whole number".into(),
+                    )
+                })?;
+                if let Some(o) = v.as_object() {
+                    for k in o.keys() {
+                        if ![
+                            "rule",
+                            "interval",
+                            "interval_hours",
+                            "interval_fraction",
+                            "stock",
+                        ]
+                        .contains(&k.as_str())
+                        {
+                            return Err(err(
+                                format!("{at}.{p}.{k}"),
+                                "unknown field; allowed: rule, interval_hours, interval_fraction, stock".into(),
+                            ));
+                        }
+                    }
+                }
+                parts.push(PartPolicy {
+                    rule,
+                    stock: stock_of(s, format!("{at}.{p}.stock"))?,
+                });
+            }
         }
         let policy = Policy { name, parts };
         if let Some(m) = model.safety_violation(&policy) {
-            return Err(err(at, m));
+            return Err(err(at.to_string(), m));
         }
         out.push(policy);
     }
     Ok(out)
 }
 
-/// One part type's rule: `{"rule": "age", "interval": 11200}`.
-fn read_rule(v: &Value) -> Result<Rule, (String, String)> {
+/// One part type's rule: `{"rule": "age", "interval": 11200}` (the
+/// frontier JSON's), or with `interval_hours`, or `interval_fraction` of
+/// the part type's characteristic life `char_life` (the scenario's).
+fn read_rule(v: &Value, char_life: f64) -> Result<Rule, (String, String)> {
     let o = v.as_object().ok_or_else(|| {
         (
             String::new(),
-            "expected {\"rule\": \"run_to_failure\" | \"age\" | \"block\", \"interval\": hours or null}".to_string(),
+            "expected {\"rule\": \"run_to_failure\" | \"age\" | \"block\", \"interval_hours\": hours or null}".to_string(),
         )
     })?;
     let kind = o.get("rule").and_then(Value::as_str).ok_or_else(|| {
@@ -352,27 +572,47 @@ fn read_rule(v: &Value) -> Result<Rule, (String, String)> {
             "expected one of \"run_to_failure\", \"age\", \"block\"".to_string(),
         )
     })?;
-    let interval = match o.get("interval") {
-        None | Some(Value::Null) => None,
-        Some(x) => match x.as_f64() {
-            Some(t) if t.is_finite() && t > 0.0 => Some(t),
-            _ => {
-                return Err((
-                    ".interval".to_string(),
-                    format!("expected a positive number of hours (got {x})"),
-                ));
-            }
-        },
-    };
+    let mut interval = None;
+    for (key, scale) in [
+        ("interval", 1.0),
+        ("interval_hours", 1.0),
+        ("interval_fraction", char_life),
+    ] {
+        match o.get(key) {
+            None | Some(Value::Null) => {}
+            Some(x) => match x.as_f64().map(|t| t * scale) {
+                Some(t) if t.is_finite() && t > 0.0 => {
+                    if interval.is_some() {
+                        return Err((
+                            format!(".{key}"),
+                            "give only one of `interval_hours`, `interval_fraction` (or `interval`)".to_string(),
+                        ));
+                    }
+                    interval = Some(t);
+                }
+                _ => {
+                    let what = if key == "interval_fraction" {
+                        "fraction of the characteristic life"
+                    } else {
+                        "number of hours"
+                    };
+                    return Err((
+                        format!(".{key}"),
+                        format!("expected a positive {what} (got {x})"),
+                    ));
+                }
+            },
+        }
+    }
     match (kind, interval) {
         ("run_to_failure", None) => Ok(Rule::RunToFailure),
         ("run_to_failure", Some(_)) => Err((
-            ".interval".to_string(),
+            ".interval_hours".to_string(),
             "run_to_failure takes no interval; give null or leave it out".to_string(),
         )),
         ("age" | "block", None) => Err((
-            ".interval".to_string(),
-            format!("rule `{kind}` needs an interval in hours"),
+            ".interval_hours".to_string(),
+            format!("rule `{kind}` needs an interval in hours (`interval_hours`)"),
         )),
         ("age", Some(t)) => Ok(Rule::Age(t)),
         ("block", Some(t)) => Ok(Rule::Block(t)),
@@ -425,5 +665,66 @@ mod tests {
         assert!(e.to_string().starts_with("f.json: not JSON"), "{e}");
         let e = parse_policies(&m, "f.json", "{\"policies\": []}").unwrap_err();
         assert!(e.to_string().contains("empty"), "{e}");
+    }
+
+    /// The scenario file's field names read the same policies as the
+    /// scenario itself; an object of named entries takes its keys as names.
+    #[test]
+    fn reads_the_scenario_field_names() {
+        let m = b0();
+        let want = &m.policies[0];
+        let entry: Vec<String> = m
+            .parts
+            .iter()
+            .zip(&want.parts)
+            .map(|(pt, pp)| {
+                let interval = pp
+                    .rule
+                    .interval()
+                    .map_or(String::new(), |t| format!(", \"interval_hours\": {t}"));
+                format!(
+                    "\"{}\": {{\"rule\": \"{}\"{interval}, \"stock\": {}}}",
+                    pt.name,
+                    pp.rule.kind(),
+                    pp.stock
+                )
+            })
+            .collect();
+        let text = format!("{{\"policies\": {{\"today\": {{{}}}}}}}", entry.join(", "));
+        let ps = parse_policies(&m, "p.json", &text).unwrap();
+        assert_eq!(ps.len(), 1);
+        assert_eq!(ps[0].name, "today");
+        assert_eq!(ps[0].parts, want.parts);
+        // The same entry in an array, named by its field.
+        let text = format!("[{{\"name\": \"x\", {}}}]", entry.join(", "));
+        let ps = parse_policies(&m, "p.json", &text).unwrap();
+        assert_eq!((ps[0].name.as_str(), &ps[0].parts), ("x", &want.parts));
+        // A fraction of the characteristic life, as in scenario files.
+        let p0 = &m.parts[0];
+        let rest: Vec<String> = entry[1..].to_vec();
+        let text = format!(
+            "[{{\"{}\": {{\"rule\": \"age\", \"interval_fraction\": 0.5, \"stock\": 2}}, {}}}]",
+            p0.name,
+            rest.join(", ")
+        );
+        let ps = parse_policies(&m, "p.json", &text).unwrap();
+        assert_eq!(
+            ps[0].parts[0].rule,
+            Rule::Age(0.5 * p0.life.characteristic_life())
+        );
+        // Mistakes name the entry and the field.
+        let typo = text.replacen(&format!("\"{}\"", p0.name), "\"enginee\"", 1);
+        let e = parse_policies(&m, "p.json", &typo).unwrap_err();
+        assert!(e.to_string().contains("policies[0].enginee"), "{e}");
+        let both = text.replacen(
+            "\"interval_fraction\": 0.5",
+            "\"interval_fraction\": 0.5, \"interval_hours\": 10",
+            1,
+        );
+        let e = parse_policies(&m, "p.json", &both).unwrap_err();
+        assert!(e.to_string().contains("only one of"), "{e}");
+        let extra = text.replacen("\"stock\": 2", "\"stock\": 2, \"stok\": 1", 1);
+        let e = parse_policies(&m, "p.json", &extra).unwrap_err();
+        assert!(e.to_string().contains("unknown field"), "{e}");
     }
 }

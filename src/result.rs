@@ -4,12 +4,15 @@
 //! from a [`Summary`] and a `FrontierResult`; domain types stay free of
 //! serde, this layer converts (the small value types of `summary` and
 //! `mean_life` it embeds as they are derive it themselves).
-//! May use: `summary`, `mean_life`, `model`, `frontier`, `recost`, `serde`.
+//! May use: `summary`, `mean_life`, `model`, `frontier`, `recost`, `text`
+//! (the words of a named policy's standing and of the cheapest on total,
+//! which the terminal and the report both print from here), `serde`.
 
 use serde::Serialize;
 
 use std::collections::BTreeMap;
 
+use crate::frontier::Bound;
 use crate::mean_life::MeanLifePlan;
 use crate::model::{Measure, Model, Policy};
 use crate::summary::{AvailabilityFigures, Chance, MeanSe, Summary};
@@ -177,6 +180,8 @@ pub struct EvaluateJson {
     pub first_trial: u64,
     pub seed: u64,
     pub policy: String,
+    /// The policy's stable code (`Policy::code`).
+    pub policy_code: String,
     pub target: f64,
     pub horizon_hours: f64,
     pub units: usize,
@@ -225,6 +230,7 @@ impl EvaluateJson {
             first_trial: s.first_trial,
             seed: model.seed,
             policy: policy.name.clone(),
+            policy_code: policy.code(model),
             target: s.target,
             horizon_hours: model.horizon,
             units: model.units.len(),
@@ -423,6 +429,9 @@ pub struct NoiseJson {
 #[derive(Debug, Clone, Serialize, PartialEq)]
 pub struct FrontierPolicyJson {
     pub name: String,
+    /// Six characters derived from what the policy sets (`Policy::code`):
+    /// the same in every run of the scenario, whatever its F-number.
+    pub code: String,
     /// Compact human-readable form.
     pub describe: String,
     pub rules: std::collections::BTreeMap<String, RuleJson>,
@@ -467,6 +476,317 @@ pub struct FrontierJson {
     pub seconds_search: f64,
     pub seconds_validation: f64,
     pub exhaustive: bool,
+    /// How many search-frontier policies were re-costed, and why.
+    pub recosted: RecostedJson,
+    /// The scenario's named policies re-costed on the same validation
+    /// trials, and where each stands against the frontier (empty without
+    /// a search).
+    pub named_policies: Vec<NamedJson>,
+    /// Search bounds that frontier policies sit at.
+    pub bounds_reached: Vec<BoundJson>,
+    /// The frontier policy with the least mean total with the downtime
+    /// penalty (without capital); null for an empty frontier.
+    pub cheapest_on_total: Option<CheapestOnTotalJson>,
+}
+
+/// The re-costing's count and its reasons.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct RecostedJson {
+    /// Policies re-costed from the search (or the list given).
+    pub total: usize,
+    /// Non-dominated on the search trials (0 for a list given).
+    pub search_frontier: usize,
+    /// Kept by the even spread over the chance range.
+    pub spread: usize,
+    /// Kept besides, near the chance levels the report quotes.
+    pub near_levels: usize,
+    /// Kept besides, as the cheaper neighbour of a kept policy within the
+    /// noise.
+    pub near_neighbours: usize,
+    /// The same in words.
+    pub why: String,
+}
+
+/// A move from a named policy to a frontier policy (frontier minus named,
+/// paired on the same trials).
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct MoveJson {
+    pub policy: String,
+    pub code: String,
+    pub cost_diff: MeanSe,
+    pub chance_diff: MeanSe,
+    pub cost_within_noise: bool,
+    pub chance_within_noise: bool,
+}
+
+/// A named policy of the scenario against the frontier.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct NamedJson {
+    pub name: String,
+    pub code: String,
+    pub describe: String,
+    /// The cost measure over the horizon.
+    pub cost: MeanSe,
+    pub chance: Chance,
+    pub total_with_penalty: f64,
+    pub spend: f64,
+    /// The frontier policy that sets exactly the same.
+    pub same_as: Option<String>,
+    /// The frontier policy that dominates it, saving most.
+    pub dominated_by: Option<String>,
+    /// The cheapest frontier policy with at least its chance.
+    pub up: Option<MoveJson>,
+    /// The frontier policy with the most chance costing no more.
+    pub down: Option<MoveJson>,
+    /// Its standing and the moves in words (the terminal and the report
+    /// print these).
+    pub words: String,
+}
+
+/// A search bound that frontier policies sit at.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct BoundJson {
+    pub part: String,
+    /// `stock_max`, `stock_min`, `interval_max` or `interval_min`.
+    pub bound: &'static str,
+    /// The rule the interval is of (`age`, `block`), null for stock.
+    pub rule: Option<&'static str>,
+    /// The stock level or the interval in hours.
+    pub value: f64,
+    pub policies: Vec<String>,
+    pub words: String,
+}
+
+/// The frontier policy cheapest on the total with the downtime penalty.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct CheapestOnTotalJson {
+    pub policy: String,
+    pub code: String,
+    pub total_with_penalty: f64,
+    pub spend: f64,
+    pub chance: f64,
+    pub words: String,
+}
+
+/// A policy's name and code: `F3 (1EAEAR)`.
+pub fn labelled(name: &str, code: &str) -> String {
+    format!("{name} ({code})")
+}
+
+/// A chance difference in points, signed: `+2.1 points`.
+fn points_words(d: f64) -> String {
+    let p = 100.0 * d;
+    let s = format!("{:.1}", p.abs());
+    let unit = if s == "1.0" { "point" } else { "points" };
+    if p >= 0.05 {
+        format!("+{s} {unit}")
+    } else if p <= -0.05 {
+        format!("-{s} {unit}")
+    } else {
+        "no change".to_string()
+    }
+}
+
+/// What moving from a named policy to a frontier policy costs and gains.
+fn move_words(m: &MoveJson, cur: &str) -> String {
+    let d = m.cost_diff.mean;
+    let cost = if d > 0.0 {
+        format!("costs {}{cur} more", crate::text::money(d))
+    } else if d < 0.0 {
+        format!("saves {}{cur}", crate::text::money(-d))
+    } else {
+        "costs the same".to_string()
+    };
+    let noise = match (m.cost_within_noise, m.chance_within_noise) {
+        (true, true) => " (both within the noise of the trials)",
+        (true, false) => " (the cost difference within the noise)",
+        (false, true) => " (the chance difference within the noise)",
+        (false, false) => "",
+    };
+    format!(
+        "{} {cost} for {} of chance{noise}",
+        labelled(&m.policy, &m.code),
+        points_words(m.chance_diff.mean)
+    )
+}
+
+/// A named policy's standing in words.
+fn standing_words(n: &NamedJson, cur: &str) -> String {
+    let me = format!("`{}` ({})", n.name, n.code);
+    if let Some(f) = &n.same_as {
+        return format!("{me} = {f} on the frontier: it sets exactly what {f} sets.");
+    }
+    let mut s = match (&n.dominated_by, &n.up) {
+        (Some(f), Some(up)) => format!(
+            "{me} is dominated by {f}: {} of chance for {}{cur} less.",
+            points_words(up.chance_diff.mean),
+            crate::text::money(-up.cost_diff.mean)
+        ),
+        _ => format!("{me} is not dominated by any frontier policy found."),
+    };
+    let moves: Vec<String> = [("up", &n.up), ("down", &n.down)]
+        .iter()
+        .filter_map(|(_, m)| m.as_ref())
+        .map(|m| move_words(m, cur))
+        .collect();
+    let moves = {
+        let mut v = moves;
+        v.dedup();
+        v
+    };
+    if !moves.is_empty() {
+        s.push_str(&format!(
+            " Moving to the nearest frontier policies: {}.",
+            moves.join("; ")
+        ));
+    }
+    s
+}
+
+/// A paired difference as JSON.
+#[derive(Debug, Clone, Copy, Serialize, PartialEq)]
+pub struct DiffJson {
+    /// Mean of the per-trial differences and its standard error.
+    pub diff: MeanSe,
+    /// |diff| at most two standard errors.
+    pub within_noise: bool,
+}
+
+impl From<crate::recost::PairedDiff> for DiffJson {
+    fn from(d: crate::recost::PairedDiff) -> Self {
+        DiffJson {
+            diff: d.diff,
+            within_noise: d.within_noise,
+        }
+    }
+}
+
+/// One policy of a comparison.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct ComparedJson {
+    pub name: String,
+    pub code: String,
+    pub describe: String,
+    /// Chance of meeting the target in force.
+    pub chance: Chance,
+    pub availability: MeanSe,
+    /// With the downtime penalty, without capital.
+    pub total: MeanSe,
+    /// Parts, labour, holding and the initial stock's capital.
+    pub spend: MeanSe,
+    pub initial_stock_capital: f64,
+}
+
+/// One policy against the first, paired on the same trials (this one
+/// minus the first).
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct PairJson {
+    pub policy: String,
+    pub against: String,
+    pub total: DiffJson,
+    pub spend: DiffJson,
+    pub chance: DiffJson,
+    pub availability: DiffJson,
+}
+
+/// The result of `wearout evaluate --policy A --policy B ...`.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct CompareJson {
+    pub scenario: String,
+    pub trials: u64,
+    pub first_trial: u64,
+    pub seed: u64,
+    pub target: f64,
+    /// What the target in force is of: `availability` or `readiness`.
+    pub target_measure: &'static str,
+    pub parameter_uncertainty: bool,
+    pub policies: Vec<ComparedJson>,
+    /// Every policy after the first against the first.
+    pub differences: Vec<PairJson>,
+}
+
+impl CompareJson {
+    /// Build from summaries of the same trials, the first the baseline.
+    pub fn new(model: &Model, summaries: &[Summary]) -> Self {
+        let first = &summaries[0];
+        let policies = summaries
+            .iter()
+            .map(|s| ComparedJson {
+                name: s.policy.name.clone(),
+                code: s.policy.code(model),
+                describe: s.policy.describe(model),
+                chance: s.chance(),
+                availability: MeanSe::from(&s.acc.availability),
+                total: MeanSe::from(&s.acc.total),
+                spend: MeanSe {
+                    mean: s.acc.spend.mean() + s.initial_stock_capital,
+                    se: s.acc.spend.se(),
+                },
+                initial_stock_capital: s.initial_stock_capital,
+            })
+            .collect();
+        let differences = summaries[1..]
+            .iter()
+            .map(|s| {
+                let p = crate::recost::paired(first, s);
+                PairJson {
+                    policy: s.policy.name.clone(),
+                    against: first.policy.name.clone(),
+                    total: p.total.into(),
+                    spend: p.spend.into(),
+                    chance: p.chance.into(),
+                    availability: p.availability.into(),
+                }
+            })
+            .collect();
+        CompareJson {
+            scenario: model.name.clone(),
+            trials: first.trials(),
+            first_trial: first.first_trial,
+            seed: model.seed,
+            target: first.target,
+            target_measure: match first.measure {
+                Measure::Availability => "availability",
+                Measure::Readiness => "readiness",
+            },
+            parameter_uncertainty: model.parameter_uncertainty,
+            policies,
+            differences,
+        }
+    }
+}
+
+/// Why the re-costed policies are the ones they are, in words.
+pub fn recosted_words(r: &crate::frontier::FrontierResult) -> String {
+    let st = &r.stats;
+    if r.search_trials == 0 {
+        return format!("the {} given policies", st.recosted);
+    }
+    if st.recosted == r.search_frontier.len()
+        && st.recosted_near_levels == 0
+        && st.recosted_near_neighbours == 0
+    {
+        return format!("all {} search-frontier policies", st.recosted);
+    }
+    let mut s = format!(
+        "{} of the {} search-frontier policies: {} spread over the chance range",
+        st.recosted,
+        r.search_frontier.len(),
+        st.recosted_spread
+    );
+    if st.recosted_near_levels > 0 {
+        s.push_str(&format!(
+            ", {} more near the chance levels quoted (50 to 99 %) so the cheapest for each is not missed",
+            st.recosted_near_levels
+        ));
+    }
+    if st.recosted_near_neighbours > 0 {
+        s.push_str(&format!(
+            ", {} more whose chance is within the noise of a dearer kept one",
+            st.recosted_near_neighbours
+        ));
+    }
+    s
 }
 
 /// A short label of a cost measure: `spend (mean)`.
@@ -504,6 +824,7 @@ impl FrontierJson {
                 }
                 FrontierPolicyJson {
                     name: c.policy.name.clone(),
+                    code: c.policy.code(model),
                     describe: c.policy.describe(model),
                     rules,
                     stock,
@@ -527,7 +848,125 @@ impl FrontierJson {
                 }
             })
             .collect();
+        let cur = crate::text::currency(&model.currency, " ", "");
+        let st = &r.stats;
+        let recosted = RecostedJson {
+            total: st.recosted,
+            search_frontier: r.search_frontier.len(),
+            spread: st.recosted_spread,
+            near_levels: st.recosted_near_levels,
+            near_neighbours: st.recosted_near_neighbours,
+            why: recosted_words(r),
+        };
+        let mv = |m: &crate::recost::Move| {
+            let p = &r.points[m.to].costed.policy;
+            MoveJson {
+                policy: p.name.clone(),
+                code: p.code(model),
+                cost_diff: m.diff.cost_diff,
+                chance_diff: m.diff.chance_diff,
+                cost_within_noise: m.diff.cost_within_noise,
+                chance_within_noise: m.diff.chance_within_noise,
+            }
+        };
+        let named_policies = r
+            .named
+            .iter()
+            .map(|n| {
+                let c = &n.costed;
+                let mut j = NamedJson {
+                    name: c.policy.name.clone(),
+                    code: c.policy.code(model),
+                    describe: c.policy.describe(model),
+                    cost: c.cost,
+                    chance: c.chance,
+                    total_with_penalty: c.summary.acc.total.mean(),
+                    spend: c.summary.acc.spend.mean() + c.summary.initial_stock_capital,
+                    same_as: n.same_as.map(|i| r.points[i].costed.policy.name.clone()),
+                    dominated_by: n
+                        .dominated_by(&r.points)
+                        .map(|i| r.points[i].costed.policy.name.clone()),
+                    up: n.up.as_ref().map(mv),
+                    down: n.down.as_ref().map(mv),
+                    words: String::new(),
+                };
+                j.words = standing_words(&j, &cur);
+                j
+            })
+            .collect();
+        let bounds_reached = r
+            .bounds
+            .iter()
+            .map(|b| {
+                let part = model.parts[b.part].name.clone();
+                let (rule, what) = match b.bound {
+                    Bound::StockMax(s) => (None, format!("the largest stock searched ({s})")),
+                    Bound::StockMin(s) => (None, format!("the smallest stock searched ({s})")),
+                    Bound::IntervalMax(k, t) => (
+                        Some(k),
+                        format!("the longest {k} interval searched ({} h)", crate::text::num(t, 0)),
+                    ),
+                    Bound::IntervalMin(k, t) => (
+                        Some(k),
+                        format!("the shortest {k} interval searched ({} h)", crate::text::num(t, 0)),
+                    ),
+                };
+                let wider = match b.bound {
+                    Bound::StockMax(_) | Bound::IntervalMax(..) => "widen the range upwards",
+                    Bound::StockMin(_) | Bound::IntervalMin(..) => "widen the range downwards",
+                };
+                let n = b.policies.len();
+                BoundJson {
+                    words: format!(
+                        "{part}: {n} of the {} frontier policies {} at {what} ({}); a wider search may reach a higher chance more cheaply: {wider} in [search.parts.{part}].",
+                        r.points.len(),
+                        if n == 1 { "sits" } else { "sit" },
+                        b.policies.join(", ")
+                    ),
+                    part,
+                    bound: b.bound.key(),
+                    rule,
+                    value: b.bound.value(),
+                    policies: b.policies.clone(),
+                }
+            })
+            .collect();
+        let cheapest_on_total = r
+            .points
+            .iter()
+            .min_by(|a, b| {
+                a.costed
+                    .summary
+                    .acc
+                    .total
+                    .mean()
+                    .total_cmp(&b.costed.summary.acc.total.mean())
+            })
+            .map(|pt| {
+                let c = &pt.costed;
+                let total = c.summary.acc.total.mean();
+                let spend = c.summary.acc.spend.mean() + c.summary.initial_stock_capital;
+                let code = c.policy.code(model);
+                CheapestOnTotalJson {
+                    words: format!(
+                        "Cheapest on the total with the downtime penalty: {}, {}{cur} (spend {}{cur}, chance {:.1} %).",
+                        labelled(&c.policy.name, &code),
+                        crate::text::money(total),
+                        crate::text::money(spend),
+                        100.0 * c.chance.value
+                    ),
+                    policy: c.policy.name.clone(),
+                    code,
+                    total_with_penalty: total,
+                    spend,
+                    chance: c.chance.value,
+                }
+            });
         FrontierJson {
+            recosted,
+            named_policies,
+            bounds_reached,
+            cheapest_on_total,
             scenario: model.name.clone(),
             policies,
             evaluated: r.stats.evaluated,

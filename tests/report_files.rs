@@ -360,6 +360,36 @@ fn html_is_self_contained_and_links_only_its_own_files() {
     assert!(html.contains("@media print") && html.contains("@page"));
 }
 
+/// The text of a Markdown section from its heading to the next heading.
+fn section<'a>(md: &'a str, heading: &str) -> &'a str {
+    let start = md.find(heading).expect("heading") + heading.len();
+    let end = md[start..].find("\n#").map_or(md.len(), |e| start + e);
+    &md[start..end]
+}
+
+/// The F-numbers a text names, sorted, each once.
+fn f_numbers(text: &str) -> Vec<u32> {
+    let b = text.as_bytes();
+    let mut out = Vec::new();
+    for i in 0..b.len() {
+        let starts = b[i] == b'F' && (i == 0 || !b[i - 1].is_ascii_alphanumeric());
+        if !starts {
+            continue;
+        }
+        let digits: String = text[i + 1..]
+            .chars()
+            .take_while(char::is_ascii_digit)
+            .collect();
+        let next = text[i + 1 + digits.len()..].chars().next();
+        if !digits.is_empty() && !next.is_some_and(|c| c.is_ascii_alphanumeric()) {
+            out.push(digits.parse().expect("digits"));
+        }
+    }
+    out.sort_unstable();
+    out.dedup();
+    out
+}
+
 #[test]
 fn summary_md_names_the_findings() {
     let (model, result, _) = demo();
@@ -375,9 +405,30 @@ fn summary_md_names_the_findings() {
     ] {
         assert!(md.contains(heading), "summary.md lacks {heading}");
     }
+    // Every table names a policy by its F-number and its code.
     for pt in &result.points {
-        assert!(md.contains(&format!("| {} |", pt.costed.policy.name)));
+        let p = &pt.costed.policy;
+        assert!(md.contains(&format!("| {} ({}) |", p.name, p.code(model))));
     }
+    // The scenario's own policies, placed against the frontier.
+    assert!(md.contains("## The scenario's own policies"));
+    for p in &model.policies {
+        assert!(md.contains(&format!("| {} ({}) |", p.name, p.code(model))));
+    }
+    // Issue 13, item 11: the policies the summary names are exactly the
+    // ones the figures single out (the columns of the chance table).
+    let short = section(&md, "## In short");
+    let named_in_short = f_numbers(short);
+    let table_head = md
+        .lines()
+        .find(|l| l.starts_with("| availability at least |"))
+        .expect("the chance table");
+    assert_eq!(
+        named_in_short,
+        f_numbers(table_head),
+        "{short}\n{table_head}"
+    );
+    assert!(short.contains("with the downtime penalty"));
     for part in &model.parts {
         assert!(md.contains(&format!("`{}`", part.name)));
     }

@@ -1,7 +1,8 @@
 //! `wearout evaluate`: cost one policy on shared trials, in this process
-//! or as one shard of the run.
+//! or as one shard of the run; with several `--policy`, cost each on the
+//! same trials and show the paired differences from the first.
 //!
-//! Owns: choosing the policy and the trial count from the arguments.
+//! Owns: choosing the policies and the trial count from the arguments.
 //! May use: the library's `run`, `scenario`, `model`; the command layer's
 //! shared steps.
 
@@ -18,8 +19,9 @@ use super::{CliError, Finished, Prepared, RunOpts, prepare, shard, show};
 /// What the command line asked of an evaluation.
 pub struct EvaluateArgs<'a> {
     pub file: Option<&'a Path>,
-    /// The policy's name (default: the scenario's first).
-    pub policy: Option<&'a str>,
+    /// The policies' names (default: the scenario's first); two or more
+    /// compare them.
+    pub policies: Vec<&'a str>,
     pub trials: Option<u64>,
     /// `--report [DIR]`.
     pub report: Option<Option<&'a Path>>,
@@ -33,7 +35,10 @@ pub fn run(args: &EvaluateArgs<'_>, opts: &RunOpts, out: &mut dyn Write) -> Resu
     if trials == 0 {
         return Err(CliError::user("--trials must be at least 1"));
     }
-    let policy = pick(model, args.policy)?;
+    if args.policies.len() > 1 {
+        return compare(args, opts, &loaded, target, trials, out);
+    }
+    let policy = pick(model, args.policies.first().copied())?;
     if let Some(request) = shard::request(opts, args.report.is_some())? {
         return request.write(
             &loaded,
@@ -64,6 +69,56 @@ pub fn run(args: &EvaluateArgs<'_>, opts: &RunOpts, out: &mut dyn Write) -> Resu
         args.report,
         out,
     )
+}
+
+/// Several policies on the same trials `0..trials`, and their paired
+/// differences from the first.
+fn compare(
+    args: &EvaluateArgs<'_>,
+    opts: &RunOpts,
+    loaded: &wearout::scenario::Loaded,
+    target: f64,
+    trials: u64,
+    out: &mut dyn Write,
+) -> Result<(), CliError> {
+    let model = &loaded.model;
+    if args.report.is_some() || shard::wanted(opts) {
+        return Err(CliError::user(
+            "several --policy compare policies at the terminal or as --json; --report, --shard and --out take one --policy",
+        ));
+    }
+    let mut policies: Vec<Policy> = Vec::with_capacity(args.policies.len());
+    for name in &args.policies {
+        let p = pick(model, Some(name))?;
+        if policies.iter().any(|q| q.name == p.name) {
+            return Err(CliError::user(format!(
+                "--policy `{name}` is given twice; name each policy once"
+            )));
+        }
+        policies.push(p);
+    }
+    guard(
+        model,
+        Run::Summaries {
+            policies: &policies,
+            trials,
+        },
+    )?;
+    let bar = Bar::new("evaluate", trials.saturating_mul(policies.len() as u64));
+    let mut summaries = Vec::with_capacity(policies.len());
+    for p in &policies {
+        let s = wearout::run::evaluate(model, p, 0..trials, target, &bar)
+            .ok_or(CliError::Interrupted)?;
+        summaries.push(s);
+    }
+    bar.finish();
+    let j = wearout::result::CompareJson::new(model, &summaries);
+    if opts.json {
+        writeln!(out, "{}", serde_json::to_string_pretty(&j)?)?;
+    } else {
+        write!(out, "{}", super::render::compare(model, &j))?;
+    }
+    Ok(())
 }
 
 /// The policy named `name`, or the scenario's first.

@@ -106,9 +106,12 @@ pub enum Command {
     Evaluate {
         /// Scenario file (TOML); the embedded demo when omitted.
         file: Option<PathBuf>,
-        /// Name of a policy in the scenario's [policies] (default: the first).
+        /// Name of a policy in the scenario's [policies] (default: the
+        /// first). Give it two or more times to compare the policies on the
+        /// same trials: each one's figures and its paired differences from
+        /// the first, with their standard errors.
         #[arg(long)]
-        policy: Option<String>,
+        policy: Vec<String>,
         /// Number of trials (default: the scenario's `trials`).
         #[arg(long)]
         trials: Option<u64>,
@@ -227,7 +230,7 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), CliError> {
             set_threads(run.threads)?;
             let args = evaluate::EvaluateArgs {
                 file: file.as_deref(),
-                policy: policy.as_deref(),
+                policies: policy.iter().map(String::as_str).collect(),
                 trials,
                 report: report.as_ref().map(|d| d.as_deref()),
             };

@@ -11,7 +11,7 @@ use wearout::frontier::FrontierResult;
 use wearout::mean_life::mean_life_plan;
 use wearout::model::{Measure, Model};
 use wearout::recost::NoiseFlags;
-use wearout::result::{EvaluateJson, FrontierJson, cost_measure_label};
+use wearout::result::{CompareJson, DiffJson, EvaluateJson, FrontierJson, cost_measure_label};
 use wearout::scenario::Loaded;
 use wearout::summary::{AvailabilityFigures, Chance, MeanSe};
 use wearout::text::{CAUTION, currency, money, num};
@@ -231,9 +231,10 @@ pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
     let cur = currency(&model.currency, " (", ")");
     let mut s = String::new();
     s.push_str(&format!(
-        "Scenario `{}`, policy `{}`: {} trials (seed {}), {} units over {} h{}\n\n",
+        "Scenario `{}`, policy `{}` ({}): {} trials (seed {}), {} units over {} h{}\n\n",
         j.scenario,
         j.policy,
+        j.policy_code,
         num(j.trials as f64, 0),
         j.seed,
         j.units,
@@ -555,8 +556,10 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     ));
     let mut header = vec![
         "policy".to_string(),
+        "code".into(),
         "chance [95 % interval]".into(),
         "cost ± se".into(),
+        "total with penalty".into(),
         column.into(),
         "stock capital".into(),
     ];
@@ -565,7 +568,7 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     }
     header.push("vs previous".into());
     let mut rows = vec![header];
-    for pt in &r.points {
+    for (pt, pj) in r.points.iter().zip(&j.policies) {
         let c = &pt.costed;
         let a = match model.measure() {
             Measure::Availability => c.summary.availability(),
@@ -573,6 +576,7 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
         };
         let mut row = vec![
             c.policy.name.clone(),
+            pj.code.clone(),
             format!(
                 "{} [{}, {}]",
                 pct(c.chance.value),
@@ -580,6 +584,7 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
                 pct(c.chance.hi)
             ),
             format!("{} ± {}", money(c.cost.mean), money(c.cost.se)),
+            money(pj.total_with_penalty),
             format!(
                 "{:.1}/{:.1}/{:.1} %",
                 100.0 * a.p10,
@@ -597,6 +602,53 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
     s.push_str(&table(&rows));
     s.push_str("\nRules: RTF run to failure, A<h> age replacement at h operating hours, B<h> block replacement every h unit operating hours; S<n> base-stock level.\n");
     s.push_str("\"same within noise\": the paired difference from the row above, on the same trials, is within two standard errors; do not pay for it.\n");
+    s.push_str("Code: six characters from what the policy sets, the same in every run of this scenario (F-numbers are not). Total with penalty: mean spend without capital plus the downtime penalty.\n");
+    if let Some(ct) = &j.cheapest_on_total {
+        s.push_str(&format!("\n{}\n", ct.words));
+    }
+    if !j.named_policies.is_empty() {
+        s.push_str(&format!(
+            "\nThe scenario's named policies, re-costed on the same {} fresh trials\n",
+            num(r.validate_trials as f64, 0)
+        ));
+        let mut rows = vec![vec![
+            "policy".to_string(),
+            "code".into(),
+            "chance [95 % interval]".into(),
+            "cost ± se".into(),
+            "total with penalty".into(),
+            "standing".into(),
+        ]];
+        for n in &j.named_policies {
+            rows.push(vec![
+                n.name.clone(),
+                n.code.clone(),
+                format!(
+                    "{} [{}, {}]",
+                    pct(n.chance.value),
+                    pct(n.chance.lo),
+                    pct(n.chance.hi)
+                ),
+                format!("{} ± {}", money(n.cost.mean), money(n.cost.se)),
+                money(n.total_with_penalty),
+                match (&n.same_as, &n.dominated_by) {
+                    (Some(f), _) => format!("= {f}"),
+                    (None, Some(f)) => format!("dominated by {f}"),
+                    (None, None) => "not dominated".into(),
+                },
+            ]);
+        }
+        s.push_str(&table(&rows));
+        for n in &j.named_policies {
+            s.push_str(&format!("- {}\n", n.words));
+        }
+    }
+    if !j.bounds_reached.is_empty() {
+        s.push_str("\nSearch bounds reached\n");
+        for b in &j.bounds_reached {
+            s.push_str(&format!("- {}\n", b.words));
+        }
+    }
     let st = &r.stats;
     if r.search_trials == 0 {
         // `--policies`: a fixed list re-costed, no search.
@@ -623,13 +675,12 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
         )
     };
     s.push_str(&format!(
-        "\nSearched {} of {} policies{} in full on {} search trials ({how}); re-costed {} of the {} search-frontier policies on {} fresh trials. Took {:.1} s (screening {:.1} s, search {:.1} s, validation {:.1} s).\n",
+        "\nSearched {} of {} policies{} in full on {} search trials ({how}); re-costed {} on {} fresh trials. Took {:.1} s (screening {:.1} s, search {:.1} s, validation {:.1} s).\n",
         num(st.evaluated as f64, 0),
         num(r.space_size as f64, 0),
         if j.exhaustive { " (exhaustive)" } else { "" },
         num(r.search_trials as f64, 0),
-        st.recosted,
-        r.search_frontier.len(),
+        j.recosted.why,
         num(r.validate_trials as f64, 0),
         j.seconds,
         st.seconds_screening,
@@ -647,6 +698,90 @@ fn frontier_figure(model: &Model) -> (&'static str, &'static str) {
         Measure::Availability => ("availability", "avail P10/P50/P90"),
         Measure::Readiness => ("readiness", "ready P10/P50/P90"),
     }
+}
+
+/// The table of `evaluate --policy A --policy B ...`: each policy's
+/// figures, then each one's paired differences from the first.
+pub fn compare(model: &Model, j: &CompareJson) -> String {
+    let cur = currency(&model.currency, " (", ")");
+    let what = if j.target_measure == "readiness" {
+        "readiness"
+    } else {
+        "availability"
+    };
+    let mut s = format!(
+        "Scenario `{}`: {} policies on the same {} trials (seed {}), target {what} {}\n\n",
+        j.scenario,
+        j.policies.len(),
+        num(j.trials as f64, 0),
+        j.seed,
+        pct(j.target)
+    );
+    let mut rows = vec![vec![
+        "policy".to_string(),
+        "code".into(),
+        "chance [95 % interval]".into(),
+        "availability mean ± se".into(),
+        format!("total with penalty{cur} ± se"),
+        format!("spend{cur} ± se"),
+    ]];
+    for p in &j.policies {
+        rows.push(vec![
+            p.name.clone(),
+            p.code.clone(),
+            format!(
+                "{} [{}, {}]",
+                pct(p.chance.value),
+                pct(p.chance.lo),
+                pct(p.chance.hi)
+            ),
+            format!(
+                "{} ± {}",
+                pct2(p.availability.mean),
+                pct2(p.availability.se)
+            ),
+            format!("{} ± {}", money(p.total.mean), money(p.total.se)),
+            format!("{} ± {}", money(p.spend.mean), money(p.spend.se)),
+        ]);
+    }
+    s.push_str(&table(&rows));
+    let first = &j.policies[0].name;
+    s.push_str(&format!(
+        "\nPaired differences from `{first}` (this policy minus `{first}`, trial by trial), ± the standard error of the difference\n"
+    ));
+    let mut rows = vec![vec![
+        "policy".to_string(),
+        "chance".into(),
+        "availability".into(),
+        format!("total with penalty{cur}"),
+        format!("spend{cur}"),
+    ]];
+    let cell = |d: &DiffJson, f: &dyn Fn(f64) -> String| {
+        format!(
+            "{}{} ± {}{}",
+            if d.diff.mean > 0.0 { "+" } else { "" },
+            f(d.diff.mean),
+            f(d.diff.se),
+            if d.within_noise { " (noise)" } else { "" }
+        )
+    };
+    let points = |x: f64| format!("{:.1} pt", 100.0 * x);
+    let points2 = |x: f64| format!("{:.2} pt", 100.0 * x);
+    for d in &j.differences {
+        rows.push(vec![
+            d.policy.clone(),
+            cell(&d.chance, &points),
+            cell(&d.availability, &points2),
+            cell(&d.total, &money),
+            cell(&d.spend, &money),
+        ]);
+    }
+    s.push_str(&table(&rows));
+    s.push_str("\n(noise): the difference is within two standard errors of the paired difference: these trials cannot tell the two policies apart on that figure. pt: percentage points.\n");
+    for p in &j.policies {
+        s.push_str(&format!("{} ({}): {}\n", p.name, p.code, p.describe));
+    }
+    cautioned(s)
 }
 
 /// A share as a percentage with one decimal: 91.4 %.

@@ -47,7 +47,8 @@ use crate::model::{
     CostMeasure, CostStatistic, Model, PartPolicy, Policy, Rule, SearchSpace, Stock,
 };
 use crate::recost::{
-    self, Costed, FrontierPoint, frontier_points, non_dominated, validation_range,
+    self, Costed, FrontierPoint, Standing, frontier_points, non_dominated, standing,
+    validation_range,
 };
 use crate::run::Progress;
 use crate::sim::{ActiveParts, Simulator};
@@ -113,6 +114,14 @@ pub struct SearchStats {
     pub lps: usize,
     /// Search-frontier policies re-costed on the validation trials.
     pub recosted: usize,
+    /// Of those, kept by the even spread over the chance range (at most
+    /// [`FrontierConfig::max_frontier`]).
+    pub recosted_spread: usize,
+    /// Kept besides, near a chance level the report quotes.
+    pub recosted_near_levels: usize,
+    /// Kept besides, as the cheaper neighbour within the noise of a kept
+    /// policy.
+    pub recosted_near_neighbours: usize,
     pub seconds_screening: f64,
     pub seconds_search: f64,
     pub seconds_validation: f64,
@@ -135,6 +144,117 @@ pub struct FrontierResult {
     /// The whole search-trial frontier before thinning and re-costing (for
     /// checks).
     pub search_frontier: Vec<(Policy, MeanSe, Chance)>,
+    /// The scenario's named policies, re-costed on the same validation
+    /// trials as the frontier, and where each stands against it (a search
+    /// only; empty for a list re-costed without one).
+    pub named: Vec<Standing>,
+    /// Search bounds the frontier's policies sit at.
+    pub bounds: Vec<BoundReached>,
+}
+
+/// A bound of the search space that frontier policies sit at: a wider
+/// range might reach a higher chance more cheaply (or a lower cost).
+#[derive(Debug, Clone, PartialEq)]
+pub struct BoundReached {
+    /// Part type id.
+    pub part: usize,
+    pub bound: Bound,
+    /// Names of the frontier policies at it, cheapest first.
+    pub policies: Vec<String>,
+}
+
+/// Which edge of a part type's search space.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Bound {
+    /// The largest stock level searched.
+    StockMax(u32),
+    /// The smallest stock level searched, when above 0.
+    StockMin(u32),
+    /// The longest interval searched for the rule (`age` or `block`),
+    /// when below the part type's hard limit.
+    IntervalMax(&'static str, f64),
+    /// The shortest interval searched for the rule, when more than one.
+    IntervalMin(&'static str, f64),
+}
+
+impl Bound {
+    /// A short machine name: `stock_max`, `stock_min`, `interval_max`,
+    /// `interval_min`.
+    pub fn key(&self) -> &'static str {
+        match self {
+            Bound::StockMax(_) => "stock_max",
+            Bound::StockMin(_) => "stock_min",
+            Bound::IntervalMax(..) => "interval_max",
+            Bound::IntervalMin(..) => "interval_min",
+        }
+    }
+
+    /// The bound's value (a stock level or hours).
+    pub fn value(&self) -> f64 {
+        match *self {
+            Bound::StockMax(s) | Bound::StockMin(s) => f64::from(s),
+            Bound::IntervalMax(_, t) | Bound::IntervalMin(_, t) => t,
+        }
+    }
+}
+
+/// The search bounds the frontier `points` sit at, per part type: the
+/// largest stock searched, the smallest when above 0, and the longest and
+/// shortest interval searched for each interval rule (the longest only
+/// below the hard limit, which no wider search could pass).
+pub fn bounds_reached(model: &Model, points: &[FrontierPoint]) -> Vec<BoundReached> {
+    let Some(space) = model.search.as_ref() else {
+        return Vec::new();
+    };
+    let mut out = Vec::new();
+    for (p, ps) in space.parts.iter().enumerate() {
+        let mut candidates = vec![Bound::StockMax(ps.stock_max)];
+        if ps.stock_min > 0 {
+            candidates.push(Bound::StockMin(ps.stock_min));
+        }
+        for kind in ["age", "block"] {
+            let ts: Vec<f64> = ps
+                .rules
+                .iter()
+                .filter(|r| r.kind() == kind)
+                .filter_map(|r| r.interval())
+                .collect();
+            if ts.is_empty() {
+                continue;
+            }
+            let hi = ts.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+            let lo = ts.iter().copied().fold(f64::INFINITY, f64::min);
+            if model.parts[p].hard_limit.is_none_or(|l| hi < l) {
+                candidates.push(Bound::IntervalMax(kind, hi));
+            }
+            if ts.len() > 1 {
+                candidates.push(Bound::IntervalMin(kind, lo));
+            }
+        }
+        for bound in candidates {
+            let at: Vec<String> = points
+                .iter()
+                .filter(|pt| {
+                    let pp = &pt.costed.policy.parts[p];
+                    match bound {
+                        Bound::StockMax(s) | Bound::StockMin(s) => pp.stock.total() == s,
+                        Bound::IntervalMax(k, t) | Bound::IntervalMin(k, t) => {
+                            pp.rule.kind() == k && pp.rule.interval() == Some(t)
+                        }
+                    }
+                })
+                .map(|pt| pt.costed.policy.name.clone())
+                .collect();
+            if !at.is_empty() {
+                out.push(BoundReached {
+                    part: p,
+                    bound,
+                    policies: at,
+                });
+            }
+        }
+    }
+    out
 }
 
 impl FrontierResult {
@@ -167,6 +287,8 @@ impl FrontierResult {
             target,
             stats,
             search_frontier: Vec::new(),
+            named: Vec::new(),
+            bounds: Vec::new(),
         }
     }
 }
@@ -623,8 +745,24 @@ fn recost_the_frontier(
             )
         })
         .collect();
-    let front = thin(&full_front, &pts, config.max_frontier);
+    // Close: the paired chance difference on the search trials is within
+    // two standard errors.
+    let close = |a: usize, b: usize| {
+        recost::paired_noise(&searched[a].summary, &searched[b].summary, measure)
+            .chance_within_noise
+    };
+    let thinned = thin(
+        &full_front,
+        &pts,
+        config.max_frontier,
+        config.search_trials,
+        close,
+    );
+    let front = thinned.keep.clone();
     stats.recosted = front.len();
+    stats.recosted_spread = thinned.spread;
+    stats.recosted_near_levels = thinned.near_levels;
+    stats.recosted_near_neighbours = thinned.near_neighbours;
 
     let t_val = std::time::Instant::now();
     let front_policies: Vec<Policy> = front
@@ -635,18 +773,30 @@ fn recost_the_frontier(
             ..searched[i].policy.clone()
         })
         .collect();
-    progress.phase("validation", front.len() as u64 * config.validate_trials);
-    let recosted = recost::recost(
+    // The scenario's named policies are re-costed on the same trials, after
+    // the frontier's (which keeps the frontier's figures as they were).
+    let all: Vec<Policy> = front_policies
+        .into_iter()
+        .chain(model.policies.iter().cloned())
+        .collect();
+    progress.phase("validation", all.len() as u64 * config.validate_trials);
+    let mut recosted = recost::recost(
         model,
-        &front_policies,
+        &all,
         validation_range(config.validate_trials),
         config.target,
         measure,
         progress,
     )
     .ok_or(FrontierError::Interrupted)?;
+    let named_costed = recosted.split_off(front.len());
     stats.seconds_validation = t_val.elapsed().as_secs_f64();
     let points = frontier_points(&recosted, measure, true);
+    let named: Vec<Standing> = named_costed
+        .into_iter()
+        .map(|c| standing(c, &points, measure))
+        .collect();
+    let bounds = bounds_reached(model, &points);
     let searched_out = searched
         .into_iter()
         .enumerate()
@@ -668,14 +818,104 @@ fn recost_the_frontier(
         target: config.target,
         stats,
         search_frontier,
+        named,
+        bounds,
     })
+}
+
+/// Which search-frontier policies are re-costed, and why.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Thinned {
+    /// Indices into the searched list, cheapest first.
+    pub keep: Vec<usize>,
+    /// How many the even spread over the chance range kept.
+    pub spread: usize,
+    /// How many more were kept near a quoted chance level.
+    pub near_levels: usize,
+    /// How many more were kept because, within the noise, they may beat
+    /// their dearer neighbour on the fresh trials.
+    pub near_neighbours: usize,
+}
+
+/// The policies of the search frontier `front` (indices into `pts`,
+/// cheapest first) to re-cost on the fresh trials:
+///
+/// - at most `max` spread evenly over the chance range ([`thin_spread`]);
+/// - for every chance level the report quotes
+///   ([`recost::CHANCE_LEVELS`]), the cheapest policy reaching it on the
+///   search trials, every policy whose chance there lies within two
+///   standard errors of the level (the binomial standard error of a share
+///   of `n` trials), and the cheapest above that band: on fresh trials any
+///   of them may turn out the cheapest at that level;
+/// - the cheaper neighbour on the frontier of every policy kept so far
+///   when `close(cheaper, dearer)` says their chances are within the
+///   noise of each other: on fresh trials it may dominate the dearer one.
+///
+/// So the count re-costed may pass `max`; [`Thinned`] says by how much.
+pub fn thin(
+    front: &[usize],
+    pts: &[(f64, f64)],
+    max: usize,
+    n: u64,
+    close: impl Fn(usize, usize) -> bool,
+) -> Thinned {
+    let spread = thin_spread(front, pts, max);
+    let mut kept = vec![false; front.len()];
+    let pos = |i: usize| front.iter().position(|&f| f == i);
+    for &i in &spread {
+        if let Some(k) = pos(i) {
+            kept[k] = true;
+        }
+    }
+    let n = n.max(1) as f64;
+    let mut near_levels = 0;
+    for &level in &recost::CHANCE_LEVELS {
+        let band = 2.0 * (level * (1.0 - level) / n).sqrt().max(1.0 / n);
+        let mut above_band = false;
+        let mut reached = false;
+        for (k, &i) in front.iter().enumerate() {
+            let ch = pts[i].1;
+            let wanted = (ch >= level - band && ch <= level + band)
+                || (ch >= level && !reached)
+                || (ch > level + band && !above_band);
+            reached |= ch >= level;
+            above_band |= ch > level + band;
+            if wanted && !kept[k] {
+                kept[k] = true;
+                near_levels += 1;
+            }
+            if above_band && reached {
+                break;
+            }
+        }
+    }
+    let mut near_neighbours = 0;
+    let before: Vec<bool> = kept.clone();
+    for k in 1..front.len() {
+        if before[k] && !kept[k - 1] && close(front[k - 1], front[k]) {
+            kept[k - 1] = true;
+            near_neighbours += 1;
+        }
+    }
+    Thinned {
+        keep: front
+            .iter()
+            .zip(&kept)
+            .filter(|(_, k)| **k)
+            .map(|(&i, _)| i)
+            .collect(),
+        spread: spread.len(),
+        near_levels,
+        near_neighbours,
+    }
 }
 
 /// Keep at most `max` of the frontier `front` (indices into `pts`, cheapest
 /// first), spread over the chance range: the cheapest and the safest stay,
 /// and the interior point whose removal leaves the smallest chance gap
-/// between its neighbours goes first.
-fn thin(front: &[usize], pts: &[(f64, f64)], max: usize) -> Vec<usize> {
+/// between its neighbours goes first. On its own it may drop the cheapest
+/// policy for a chance level ([`thin`] keeps those too).
+pub fn thin_spread(front: &[usize], pts: &[(f64, f64)], max: usize) -> Vec<usize> {
     let mut keep = front.to_vec();
     while keep.len() > max.max(2) {
         let mut best = 1;
@@ -911,6 +1151,67 @@ mod tests {
     fn non_dominated_keeps_the_staircase() {
         let pts = [(1.0, 0.5), (2.0, 0.4), (2.0, 0.7), (3.0, 0.7), (4.0, 0.9)];
         assert_eq!(non_dominated(&pts), vec![0, 2, 4]);
+    }
+
+    /// A frontier the spread alone (the old rule: at most 24, the point
+    /// leaving the smallest chance gap dropped first) answers wrongly: the
+    /// cheapest policy reaching 95 % sits between two close neighbours and
+    /// is dropped, so the report would quote the dearer 95.1 % one. The
+    /// chances are on 2000 search trials; one at 98.9 % may reach 99 % on
+    /// fresh trials (its binomial standard error there is 0.22 points).
+    #[test]
+    fn thinning_keeps_the_cheapest_for_every_quoted_level() {
+        let mut chances: Vec<f64> = (0..30).map(|k| 0.30 + 0.02 * f64::from(k)).collect();
+        chances.extend([
+            0.949, 0.950, 0.951, 0.960, 0.975, 0.985, 0.989, 0.9905, 0.995,
+        ]);
+        let pts: Vec<(f64, f64)> = chances
+            .iter()
+            .enumerate()
+            .map(|(k, &c)| (1000.0 + 10.0 * k as f64, c))
+            .collect();
+        let front = non_dominated(&pts);
+        assert_eq!(front.len(), pts.len());
+        let at_95 = 31; // chance 0.950
+        let at_989 = 36; // chance 0.989
+        let old = thin_spread(&front, &pts, 24);
+        assert_eq!(old.len(), 24);
+        assert!(!old.contains(&at_95), "the old rule kept it after all");
+        let cheapest_old = old.iter().copied().find(|&i| pts[i].1 >= 0.95);
+        assert_ne!(cheapest_old, Some(at_95));
+        let t = thin(&front, &pts, 24, 2000, |_, _| false);
+        assert!(t.keep.contains(&at_95));
+        assert!(t.keep.contains(&at_989));
+        assert_eq!(t.keep.len(), t.spread + t.near_levels);
+        assert!(t.near_levels > 0);
+        // Every level's cheapest on the search trials is kept.
+        for &l in &recost::CHANCE_LEVELS {
+            let cheapest = front.iter().copied().find(|&i| pts[i].1 >= l);
+            assert!(cheapest.is_none_or(|i| t.keep.contains(&i)), "level {l}");
+        }
+        // Cheapest first, as the frontier was.
+        assert!(t.keep.windows(2).all(|w| w[0] < w[1]));
+        // A frontier small enough is kept whole, with nothing added.
+        let small = thin(&front[..10], &pts, 24, 2000, |_, _| false);
+        assert_eq!(small.keep, front[..10].to_vec());
+        assert_eq!((small.near_levels, small.near_neighbours), (0, 0));
+    }
+
+    /// A cheaper neighbour within the noise of a kept policy is re-costed
+    /// too; one that is not stays out.
+    #[test]
+    fn thinning_keeps_a_close_cheaper_neighbour() {
+        let pts: Vec<(f64, f64)> = (0..10)
+            .map(|k| (100.0 * f64::from(k), 0.01 + 0.04 * f64::from(k)))
+            .collect();
+        let front = non_dominated(&pts);
+        let spread = thin_spread(&front, &pts, 3);
+        assert_eq!(spread, vec![0, 4, 9]);
+        // No point reaches the lowest quoted level (50 %), so only the
+        // neighbour rule adds.
+        let t = thin(&front, &pts, 3, 1_000_000, |a, b| a == 3 && b == 4);
+        assert_eq!((t.near_levels, t.near_neighbours), (0, 1));
+        assert_eq!(t.keep, vec![0, 3, 4, 9]);
     }
 
     #[test]

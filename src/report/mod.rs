@@ -332,7 +332,7 @@ pub fn frontier_report(
             (&c.policy, &c.summary, c.cost, c.chance, pt.noise)
         })
         .collect();
-    let v = View::new(
+    let mut v = View::new(
         model,
         Kind::Frontier,
         result.target,
@@ -341,6 +341,7 @@ pub fn frontier_report(
         &result.searched,
         result.search_trials,
     );
+    v.answer = Some(json);
     assemble(model, &v, json_bytes(json)?, progress)
 }
 

@@ -55,6 +55,7 @@ pub fn frontier_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
     w.write_record([
         "set",
         "policy",
+        "code",
         "trials",
         "first_trial",
         "cost_measure",
@@ -71,6 +72,7 @@ pub fn frontier_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
         w.write_record([
             "searched".to_string(),
             p.name.clone(),
+            p.code(v.model),
             v.search_trials.to_string(),
             "0".to_string(),
             measure.clone(),
@@ -91,6 +93,7 @@ pub fn frontier_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
         w.write_record([
             set.to_string(),
             p.name().to_string(),
+            p.code.clone(),
             p.summary.trials().to_string(),
             p.summary.first_trial.to_string(),
             measure.clone(),
@@ -114,7 +117,7 @@ fn rule_kind(r: Rule) -> &'static str {
 pub fn policies_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
     let model = v.model;
     let mut w = csv::Writer::from_writer(Vec::new());
-    let mut head: Vec<String> = vec!["policy".into(), "describe".into()];
+    let mut head: Vec<String> = vec!["policy".into(), "code".into(), "describe".into()];
     for part in &model.parts {
         head.push(format!("{}_rule", part.name));
         head.push(format!("{}_interval_hours", part.name));
@@ -162,7 +165,11 @@ pub fn policies_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
         let s = p.summary;
         let a = &s.acc;
         let av = s.availability();
-        let mut row: Vec<String> = vec![p.name().to_string(), p.policy.describe(model)];
+        let mut row: Vec<String> = vec![
+            p.name().to_string(),
+            p.code.clone(),
+            p.policy.describe(model),
+        ];
         for pp in &p.policy.parts {
             row.push(rule_kind(pp.rule).to_string());
             row.push(pp.rule.interval().map(full).unwrap_or_default());
@@ -208,8 +215,9 @@ pub fn policies_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
 }
 
 /// The columns of `trials.csv`.
-pub const TRIAL_COLUMNS: [&str; 12] = [
+pub const TRIAL_COLUMNS: [&str; 13] = [
     "policy",
+    "code",
     "trial",
     "availability",
     "meets_target",
@@ -267,6 +275,7 @@ pub fn trials_csv(
             let sum = |f: fn(&crate::outcome::PartOutcome) -> f64| o.sum(f);
             let record = [
                 p.name().to_string(),
+                p.code.clone(),
                 t.to_string(),
                 full(o.availability),
                 u8::from(o.availability >= s.target).to_string(),

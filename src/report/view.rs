@@ -3,8 +3,9 @@
 //! them the figures single out, and the number formats people read.
 //!
 //! Owns: the report's view of a result and its formatting helpers.
-//! May use: `model`, `summary`, `recost`, `mean_life`, `analytic`, `dist`,
-//! `text`.
+//! May use: `model`, `summary`, `recost`, `result` (a frontier's JSON,
+//! for the words the terminal prints too), `mean_life`, `analytic`,
+//! `dist`, `text`.
 //! No simulation, no I/O.
 
 use crate::analytic::PoissonPipeline;
@@ -12,22 +13,23 @@ use crate::dist::LeadTime;
 use crate::mean_life::{MeanLifePlan, mean_life_plan};
 use crate::model::{CostBasis, CostMeasure, Model, Policy, Rule};
 use crate::recost::NoiseFlags;
+use crate::result::FrontierJson;
 use crate::summary::{Chance, MeanSe, Summary, percentile_sorted, sorted};
 use crate::text::{currency, num};
 
 /// Chance levels the words and the level table speak of.
-pub const LEVELS: [f64; 7] = [0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99];
+pub const LEVELS: [f64; 7] = crate::recost::CHANCE_LEVELS;
 
-/// The levels whose cheapest policies the figures single out.
-const CHOSEN_LEVELS: [f64; 4] = [0.5, 0.8, 0.9, 0.95];
-
-/// At most this many policies are singled out in the figures.
-const MAX_CHOSEN: usize = 5;
+/// The levels whose cheapest policies the summary names and the figures
+/// single out.
+pub const CHOSEN_LEVELS: [f64; 2] = [0.5, 0.9];
 
 /// One policy as the report shows it.
 #[derive(Debug, Clone)]
 pub struct PolicyView<'a> {
     pub policy: &'a Policy,
+    /// Its stable code ([`Policy::code`]).
+    pub code: String,
     pub summary: &'a Summary,
     /// The cost measure and its standard error.
     pub cost: MeanSe,
@@ -39,6 +41,21 @@ pub struct PolicyView<'a> {
 impl PolicyView<'_> {
     pub fn name(&self) -> &str {
         &self.policy.name
+    }
+
+    /// Its name and code for a table cell: `F3 (1EAEAR)`.
+    pub fn labelled(&self) -> String {
+        crate::result::labelled(self.name(), &self.code)
+    }
+
+    /// Mean total with the downtime penalty (without capital).
+    pub fn total(&self) -> f64 {
+        self.summary.acc.total.mean()
+    }
+
+    /// Mean spend with the initial stock's capital.
+    pub fn spend(&self) -> f64 {
+        self.summary.acc.spend.mean() + self.summary.initial_stock_capital
     }
 
     /// Per-trial costs on the measure's basis (capital in spend).
@@ -121,6 +138,10 @@ pub struct View<'a> {
     /// search trials.
     pub searched: &'a [(Policy, MeanSe, Chance)],
     pub search_trials: u64,
+    /// A frontier's JSON, whose words (named policies, bounds reached, the
+    /// cheapest on total, the re-costing) the report prints as the
+    /// terminal does.
+    pub answer: Option<&'a FrontierJson>,
 }
 
 impl<'a> View<'a> {
@@ -137,6 +158,7 @@ impl<'a> View<'a> {
         let policies: Vec<PolicyView<'a>> = rows
             .into_iter()
             .map(|(policy, summary, cost, chance, noise)| PolicyView {
+                code: policy.code(model),
                 policy,
                 summary,
                 cost,
@@ -146,8 +168,12 @@ impl<'a> View<'a> {
             })
             .collect();
         let planner_pick = policies.iter().position(|p| p.plan.meets_target);
-        let chosen = choose(&policies, planner_pick);
+        let chosen = match kind {
+            Kind::Frontier => choose(&policies, planner_pick),
+            Kind::Evaluate => vec![0],
+        };
         View {
+            answer: None,
             model,
             kind,
             target,
@@ -181,24 +207,9 @@ impl<'a> View<'a> {
     }
 }
 
-fn cheapest_at(policies: &[PolicyView<'_>], level: f64) -> Option<usize> {
-    policies
-        .iter()
-        .position(|p| p.chance.value >= level - 1e-12)
-}
-
-/// The policies the figures single out: the cheapest reaching each of the
-/// chosen chance levels, the one with the best chance, and the mean-life
-/// plan's pick; at most [`MAX_CHOSEN`], cheapest first.
-fn choose(policies: &[PolicyView<'_>], planner_pick: Option<usize>) -> Vec<usize> {
-    if policies.is_empty() {
-        return Vec::new();
-    }
-    let mut picks: Vec<usize> = CHOSEN_LEVELS
-        .iter()
-        .filter_map(|&l| cheapest_at(policies, l))
-        .collect();
-    let best = (0..policies.len())
+/// The policy with the best chance (the cheapest of any tie).
+fn safest(policies: &[PolicyView<'_>]) -> usize {
+    (0..policies.len())
         .max_by(|&a, &b| {
             policies[a]
                 .chance
@@ -206,21 +217,57 @@ fn choose(policies: &[PolicyView<'_>], planner_pick: Option<usize>) -> Vec<usize
                 .total_cmp(&policies[b].chance.value)
                 .then(b.cmp(&a))
         })
-        .unwrap_or(0);
-    picks.push(best);
-    if let Some(p) = planner_pick {
-        picks.push(p);
+        .unwrap_or(0)
+}
+
+/// The policy with the least mean total with the downtime penalty (the
+/// first of any tie).
+fn cheapest_on_total(policies: &[PolicyView<'_>]) -> usize {
+    (0..policies.len())
+        .min_by(|&a, &b| policies[a].total().total_cmp(&policies[b].total()))
+        .unwrap_or(0)
+}
+
+impl View<'_> {
+    /// The policy with the best chance.
+    pub fn safest(&self) -> usize {
+        safest(&self.policies)
     }
+
+    /// The policy cheapest on the total with the downtime penalty.
+    pub fn cheapest_on_total(&self) -> usize {
+        cheapest_on_total(&self.policies)
+    }
+}
+
+fn cheapest_at(policies: &[PolicyView<'_>], level: f64) -> Option<usize> {
+    policies
+        .iter()
+        .position(|p| p.chance.value >= level - 1e-12)
+}
+
+/// The policies the figures single out, which are the ones the summary
+/// names: the cheapest, the cheapest reaching each of [`CHOSEN_LEVELS`],
+/// the one with the best chance, the mean-life plan's pick and the one
+/// cheapest on the total with the downtime penalty; cheapest first.
+fn choose(policies: &[PolicyView<'_>], planner_pick: Option<usize>) -> Vec<usize> {
+    if policies.is_empty() {
+        return Vec::new();
+    }
+    let mut picks = vec![0];
+    // The summary names the levels' picks up to the first level no policy
+    // reaches.
+    for &l in &CHOSEN_LEVELS {
+        match cheapest_at(policies, l) {
+            Some(i) => picks.push(i),
+            None => break,
+        }
+    }
+    picks.push(safest(policies));
+    picks.extend(planner_pick);
+    picks.push(cheapest_on_total(policies));
     picks.sort_unstable();
     picks.dedup();
-    while picks.len() > MAX_CHOSEN {
-        // Drop the middle-most pick that is neither the best nor the
-        // planner's; keep the ends.
-        let drop = (1..picks.len() - 1)
-            .find(|&k| picks[k] != best && Some(picks[k]) != planner_pick)
-            .unwrap_or(1);
-        picks.remove(drop);
-    }
     picks
 }
 

@@ -234,26 +234,27 @@ fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
             let first = &v.policies[0];
             items.push(vec![
                 t("The cheapest policy found, "),
-                c(first.name()),
+                c(first.labelled()),
                 t(format!(
-                    ", costs {}{cur} over the horizon and meets {target} availability in ",
-                    money_short(first.cost.mean)
+                    ", costs {}{cur} over the horizon ({}{cur} with the downtime penalty) and meets {target} availability in ",
+                    money_short(first.cost.mean),
+                    money_short(first.total())
                 )),
                 b(chance_pct(first.chance.value)),
                 t(" of simulated futures."),
             ]);
-            let mut said = Vec::new();
-            for level in [0.5, 0.9] {
+            let mut said = vec![0];
+            for level in super::view::CHOSEN_LEVELS {
                 match v.cheapest_at(level) {
                     Some(i) => {
                         let p = &v.policies[i];
                         said.push(i);
                         items.push(vec![
                             t(format!("For at least a {} chance of meeting {target}, the cheapest policy is ", chance_pct(level))),
-                            c(p.name()),
+                            c(p.labelled()),
                             t(" at "),
                             b(format!("{}{cur}", money_short(p.cost.mean))),
-                            t(format!(" ({} chance, 95 % interval {} to {}).", chance_pct(p.chance.value), chance_pct(p.chance.lo), chance_pct(p.chance.hi))),
+                            t(format!(" ({}{cur} with the downtime penalty; {} chance, 95 % interval {} to {}).", money_short(p.total()), chance_pct(p.chance.value), chance_pct(p.chance.lo), chance_pct(p.chance.hi))),
                         ]);
                     }
                     None => {
@@ -271,20 +272,36 @@ fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
                     }
                 }
             }
-            if let Some(&i) = v.chosen.last() {
+            let i = v.safest();
+            if !said.contains(&i) {
                 let p = &v.policies[i];
-                if !said.contains(&i) && p.chance.value > 0.0 {
-                    items.push(vec![
-                        t("The safest policy singled out, "),
-                        c(p.name()),
-                        t(format!(
-                            ", has a {} chance at {}{cur}.",
-                            chance_pct(p.chance.value),
-                            money_short(p.cost.mean)
-                        )),
-                    ]);
-                }
+                items.push(vec![
+                    t("The policy with the best chance found, "),
+                    c(p.labelled()),
+                    t(format!(
+                        ", has a {} chance at {}{cur} ({}{cur} with the downtime penalty).",
+                        chance_pct(p.chance.value),
+                        money_short(p.cost.mean),
+                        money_short(p.total())
+                    )),
+                ]);
             }
+            // The same words as the terminal's.
+            let i = v.cheapest_on_total();
+            let words = match v.answer.and_then(|j| j.cheapest_on_total.as_ref()) {
+                Some(ct) => ct.words.clone(),
+                None => format!(
+                    "Cheapest on the total with the downtime penalty: {}.",
+                    v.policies[i].labelled()
+                ),
+            };
+            let note = match v.measure.basis {
+                CostBasis::Spend => {
+                    " Spend stays the cost measure: the penalty is a price put on down time, which the chance already measures."
+                }
+                CostBasis::TotalWithPenalty => "",
+            };
+            items.push(vec![t(format!("{words}{note}"))]);
         }
         Kind::Evaluate => {
             let p = &v.policies[0];
@@ -325,7 +342,7 @@ fn mean_life_headline(v: &View<'_>) -> Vec<Span> {
             let p = &v.policies[i];
             let mut s = vec![
                 t("The mean-life plan would pick "),
-                c(p.name()),
+                c(p.labelled()),
                 t(format!(
                     ", the cheapest policy it says meets {target} (it predicts {}); simulated, ",
                     pct1(p.plan.availability)
@@ -349,7 +366,7 @@ fn mean_life_headline(v: &View<'_>) -> Vec<Span> {
                 t(format!(
                     "The mean-life plan says no frontier policy meets {target}; simulated, "
                 )),
-                c(best.name()),
+                c(best.labelled()),
                 t(format!(
                     " meets it in {} of futures.",
                     chance_pct(best.chance.value)
@@ -402,10 +419,11 @@ fn levels(v: &View<'_>) -> Vec<Block> {
                 };
                 rows.push(vec![
                     label,
-                    p.name().to_string(),
+                    p.labelled(),
                     chance_with_interval(&p.chance),
                     money(p.cost.mean),
                     extra,
+                    money(p.total()),
                     settings(v.model, p),
                 ]);
                 picks.push(i);
@@ -414,6 +432,7 @@ fn levels(v: &View<'_>) -> Vec<Block> {
             None => rows.push(vec![
                 label,
                 "none found".into(),
+                "-".into(),
                 "-".into(),
                 "-".into(),
                 "-".into(),
@@ -440,11 +459,13 @@ fn levels(v: &View<'_>) -> Vec<Block> {
                 "its chance [95 % interval]".into(),
                 format!("cost{cur}"),
                 "extra".into(),
+                format!("total with penalty{cur}"),
                 "what it sets (S = base stock)".into(),
             ],
             align: vec![
                 Align::Right,
                 Align::Left,
+                Align::Right,
                 Align::Right,
                 Align::Right,
                 Align::Right,
@@ -470,6 +491,82 @@ fn levels(v: &View<'_>) -> Vec<Block> {
         out.push(Block::Note(vec![t(
             "\"Mostly\" names the part type whose mean cost rises most between the two policies (capital included in spend). Its parts and labour can rise too, because units that are up more run more hours and wear more parts. A \"point of chance\" is one percentage point of the chance of meeting the target.",
         )]));
+    }
+    out
+}
+
+/// The scenario's named policies against the frontier, and the search
+/// bounds the frontier sits at: the same words as the terminal's (from
+/// the result's JSON).
+fn answer_sections(v: &View<'_>) -> Vec<Block> {
+    let Some(j) = v.answer else {
+        return Vec::new();
+    };
+    let cur = v.cur();
+    let mut out = Vec::new();
+    if !j.named_policies.is_empty() {
+        out.push(Block::Heading(
+            2,
+            "The scenario's own policies".into(),
+            "named".into(),
+        ));
+        out.push(Block::Para(vec![t(format!(
+            "Each policy named in the scenario, costed on the same {} fresh trials as the frontier, and where it stands against it (squares on the frontier figure). Differences are paired, trial by trial; \"within the noise\" means within two standard errors of the paired difference.",
+            num(j.validate_trials as f64, 0)
+        ))]));
+        let rows = j
+            .named_policies
+            .iter()
+            .map(|n| {
+                vec![
+                    format!("{} ({})", n.name, n.code),
+                    chance_with_interval(&n.chance),
+                    format!("{}\u{a0}±\u{a0}{}", money(n.cost.mean), money(n.cost.se)),
+                    money(n.total_with_penalty),
+                    match (&n.same_as, &n.dominated_by) {
+                        (Some(f), _) => format!("= {f}"),
+                        (None, Some(f)) => format!("dominated by {f}"),
+                        (None, None) => "not dominated".into(),
+                    },
+                ]
+            })
+            .collect();
+        out.push(Block::Table {
+            head: vec![
+                "policy".into(),
+                "chance [95 % interval]".into(),
+                format!("cost{cur} ± se"),
+                format!("total with penalty{cur}"),
+                "standing".into(),
+            ],
+            align: vec![
+                Align::Left,
+                Align::Right,
+                Align::Right,
+                Align::Right,
+                Align::Left,
+            ],
+            rows,
+        });
+        out.push(Block::Bullets(
+            j.named_policies
+                .iter()
+                .map(|n| vec![t(n.words.clone())])
+                .collect(),
+        ));
+    }
+    if !j.bounds_reached.is_empty() {
+        out.push(Block::Heading(
+            3,
+            "Search bounds reached".into(),
+            "bounds".into(),
+        ));
+        out.push(Block::Bullets(
+            j.bounds_reached
+                .iter()
+                .map(|b| vec![t(b.words.clone())])
+                .collect(),
+        ));
     }
     out
 }
@@ -504,7 +601,7 @@ fn chance_table(v: &View<'_>) -> Block {
         levels.sort_by(f64::total_cmp);
     }
     let mut head = vec!["availability at least".to_string()];
-    head.extend(chosen.iter().map(|p| p.name().to_string()));
+    head.extend(chosen.iter().map(|p| p.labelled()));
     let rows = levels
         .iter()
         .map(|&l| {
@@ -676,7 +773,7 @@ fn gap_words(lo: f64, hi: f64, n: usize, unit: &str, what: &str) -> Option<Strin
 fn cost_table(v: &View<'_>) -> Block {
     let chosen: Vec<&PolicyView<'_>> = v.chosen_views().collect();
     let mut head = vec![format!("mean over the horizon{}", v.cur())];
-    head.extend(chosen.iter().map(|p| p.name().to_string()));
+    head.extend(chosen.iter().map(|p| p.labelled()));
     let comps: Vec<Vec<(&'static str, f64)>> = chosen
         .iter()
         .map(|p| super::plots::components(p, v.measure.basis))
@@ -690,11 +787,7 @@ fn cost_table(v: &View<'_>) -> Block {
         }
     }
     let mut r = vec!["spend (with capital, no penalty)".to_string()];
-    r.extend(
-        chosen
-            .iter()
-            .map(|p| money(p.summary.acc.spend.mean() + p.summary.initial_stock_capital)),
-    );
+    r.extend(chosen.iter().map(|p| money(p.spend())));
     rows.push(r);
     let mut r = vec!["total (with penalty, no capital)".to_string()];
     r.extend(chosen.iter().map(|p| money(p.summary.acc.total.mean())));
@@ -730,7 +823,7 @@ fn part_table(v: &View<'_>) -> Block {
                 } else {
                     String::new()
                 },
-                pv.name().to_string(),
+                pv.labelled(),
                 rule_short(pp.rule),
                 before,
                 pp.stock.to_string(),
@@ -793,9 +886,10 @@ fn all_policies(v: &View<'_>) -> Vec<Block> {
         .map(|p| {
             let a = p.summary.availability();
             vec![
-                p.name().to_string(),
+                p.labelled(),
                 chance_with_interval(&p.chance),
                 format!("{}\u{a0}±\u{a0}{}", money(p.cost.mean), money(p.cost.se)),
+                money(p.total()),
                 format!(
                     "{:.1} / {:.1} / {}",
                     100.0 * a.p10,
@@ -816,12 +910,14 @@ fn all_policies(v: &View<'_>) -> Vec<Block> {
             "policy".to_string(),
             "chance [95 % interval]".into(),
             format!("cost{} ± se", v.cur()),
+            format!("total with penalty{}", v.cur()),
             "availability P10 / P50 / P90".into(),
             "mean-life plan".into(),
             "against the row above".into(),
         ],
         align: vec![
             Align::Left,
+            Align::Right,
             Align::Right,
             Align::Right,
             Align::Right,
@@ -836,7 +932,7 @@ fn all_policies(v: &View<'_>) -> Vec<Block> {
         .policies
         .iter()
         .map(|p| {
-            let mut r = vec![p.name().to_string(), money(p.summary.initial_stock_capital)];
+            let mut r = vec![p.labelled(), money(p.summary.initial_stock_capital)];
             r.extend(p.policy.parts.iter().map(compact));
             r
         })
@@ -869,12 +965,13 @@ fn assumptions(v: &View<'_>) -> Vec<Block> {
     let first = &v.policies[0].summary;
     match v.kind {
         Kind::Frontier => items.push(vec![t(format!(
-            "Trials: {} search trials (numbers 0 to {}) to find the policies, then {} fresh trials (numbers from {}) for every figure of the frontier policies; seed {}. Every policy is costed on the same trials.",
+            "Trials: {} search trials (numbers 0 to {}) to find the policies, then {} fresh trials (numbers from {}) for every figure of the frontier policies; seed {}. Every policy is costed on the same trials.{}",
             num(v.search_trials as f64, 0),
             num(v.search_trials.saturating_sub(1) as f64, 0),
             num(first.trials() as f64, 0),
             num(first.first_trial as f64, 0),
-            model.seed
+            model.seed,
+            v.answer.map_or(String::new(), |j| format!(" Re-costed on the fresh trials: {}.", j.recosted.why))
         ))]),
         Kind::Evaluate => items.push(vec![t(format!(
             "Trials: {} (numbers {} to {}); seed {}.",
@@ -1024,6 +1121,7 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
     ];
     if v.kind == Kind::Frontier {
         doc.extend(levels(v));
+        doc.extend(answer_sections(v));
         doc.push(Block::Heading(
             2,
             "Cost against chance: the frontier".into(),
@@ -1031,7 +1129,7 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
         ));
         doc.extend(fig("frontier.svg"));
         doc.push(Block::Note(vec![t(
-            "Grey dots: every policy the search simulated in full, on the search trials. Blue: the non-dominated policies, re-costed on fresh trials, cheapest first; vertical bars are 95 % intervals of the chance, horizontal bars 95 % intervals of the cost. Ringed: the policies the other figures single out.",
+            "Grey dots: every policy the search simulated in full, on the search trials. Blue: the non-dominated policies, re-costed on fresh trials, cheapest first; vertical bars are 95 % intervals of the chance, horizontal bars 95 % intervals of the cost. Ringed: the policies the summary names, which the other figures single out. Squares: the scenario's named policies, on the same fresh trials.",
         )]));
     }
     doc.push(Block::Heading(

@@ -33,11 +33,19 @@ fn frontier_left(v: &View<'_>, hi: f64) -> (f64, bool) {
 pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
     const FIG: &str = "frontier.svg";
     let pts: Vec<&PolicyView<'_>> = v.policies.iter().collect();
+    // The scenario's named policies: (name, cost, chance).
+    let named: Vec<(String, f64, f64)> = v.answer.map_or(Vec::new(), |j| {
+        j.named_policies
+            .iter()
+            .map(|n| (n.name.clone(), n.cost.mean, n.chance.value))
+            .collect()
+    });
     let (_, hi) = min_max(
         v.searched
             .iter()
             .map(|s| s.1.mean)
-            .chain(pts.iter().map(|p| p.cost.mean + 2.0 * p.cost.se)),
+            .chain(pts.iter().map(|p| p.cost.mean + 2.0 * p.cost.se))
+            .chain(named.iter().map(|n| n.1)),
     );
     let (lo, off_scale) = frontier_left(v, hi);
     let (x0, x1) = pad(lo, hi, 0.04);
@@ -165,6 +173,33 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
             )
             .map_err(pe(FIG))?;
 
+        // The named policies: squares, each labelled with its name.
+        let mark = PALETTE[1];
+        for (name, c, k) in &named {
+            if !inside(*c) {
+                continue;
+            }
+            let (px, py) = chart.backend_coord(&(*c, *k));
+            root.draw(&Rectangle::new(
+                [(px - 5, py - 5), (px + 5, py + 5)],
+                mark.filled(),
+            ))
+            .map_err(pe(FIG))?;
+            let w = text_width(name, 13.0);
+            let spot = [(px + 10, py + 4), (px - w - 10, py + 4), (px + 10, py - 20)]
+                .into_iter()
+                .find(|&(x, y)| placed.free((x, y, x + w, y + 15)))
+                .unwrap_or((px + 10, py + 4));
+            placed.take((spot.0, spot.1, spot.0 + w, spot.1 + 15));
+            text(
+                root,
+                name,
+                spot,
+                &style(13.0, &mark, HPos::Left, VPos::Top),
+                FIG,
+            )?;
+        }
+
         // Labels, chosen ones first, skipping any that would overlap.
         let mut order: Vec<usize> = v.chosen.clone();
         order.extend((0..pts.len()).filter(|i| !v.chosen.contains(i)));
@@ -214,23 +249,21 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
             text(root, p.name(), spot, &st, FIG)?;
         }
 
-        legend_row(
-            root,
-            70,
-            580,
-            &[
-                (
-                    format!("all simulated in the search ({} trials)", v.search_trials),
-                    Swatch::Dot(FAINT),
-                ),
-                (
-                    "non-dominated, on fresh trials, 95\u{a0}% intervals".into(),
-                    Swatch::Line(line),
-                ),
-                ("singled out".into(), Swatch::Ring(INK)),
-            ],
-            FIG,
-        )?;
+        let mut legend = vec![
+            (
+                format!("all simulated in the search ({} trials)", v.search_trials),
+                Swatch::Dot(FAINT),
+            ),
+            (
+                "non-dominated, on fresh trials, 95\u{a0}% intervals".into(),
+                Swatch::Line(line),
+            ),
+            ("named in the summary".into(), Swatch::Ring(INK)),
+        ];
+        if !named.is_empty() {
+            legend.push(("the scenario's own".into(), Swatch::Square(mark)));
+        }
+        legend_row(root, 40, 580, &legend, FIG)?;
         Ok(())
     })
 }

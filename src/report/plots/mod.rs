@@ -180,6 +180,12 @@ fn legend_row(
             Swatch::Diamond(c) => root
                 .draw(&PathElement::new(diamond((x + 7, y), 6), c.stroke_width(2)))
                 .map_err(pe(figure))?,
+            Swatch::Square(c) => root
+                .draw(&Rectangle::new(
+                    [(x + 2, y - 5), (x + 12, y + 5)],
+                    c.filled(),
+                ))
+                .map_err(pe(figure))?,
         }
         text(root, label, (x + 22, y), &st, figure)?;
         // The naive width estimate plotters makes for SVG text.
@@ -196,6 +202,7 @@ enum Swatch {
     Dot(RGBColor),
     Diamond(RGBColor),
     Ring(RGBColor),
+    Square(RGBColor),
 }
 
 /// A closed diamond outline around `c`, radius `r` pixels.
