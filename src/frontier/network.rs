@@ -345,13 +345,19 @@ fn stock_path(
             Stock::single(sites[0])
         }
     };
+    // Pipelines the two-echelon model can hold: finite means.
+    let total: f64 = demands.iter().map(|d| d.rate).sum();
+    let finite = demands.iter().all(|d| (d.rate * d.resupply).is_finite())
+        && (model.depot.is_none() || (total * depot_resupply).is_finite());
     let echelon = match &model.depot {
-        Some(_) => TwoEchelon::with_depot(demands, depot_resupply),
-        None => TwoEchelon::without_depot(demands),
+        _ if !finite => Err(()),
+        Some(_) => TwoEchelon::with_depot(demands, depot_resupply).map_err(|_| ()),
+        None => TwoEchelon::without_depot(demands).map_err(|_| ()),
     };
     let least_sites: Vec<u32> = site_bounds.iter().map(|b| b.0).collect();
     let Ok(echelon) = echelon else {
-        // No demand: nothing is ever short; the least stock only.
+        // No demand (nothing is ever short), or none the model can hold:
+        // the least stock only.
         let stock = make_stock(&least_sites, depot_bound.0);
         let spares = f64::from(stock.total());
         return vec![StockPoint {
@@ -514,6 +520,12 @@ fn layers<T>(items: Vec<T>, key: impl Fn(&T) -> (f64, f64), depth: usize) -> Vec
 /// marginal analysis per depot level.
 const MAX_ENUMERATED: usize = 4096;
 
+/// Most options of one part type kept (its lowest layers first).
+const MAX_OPTIONS: usize = 600;
+
+/// Most nodes one merge step builds.
+const MAX_MERGED: usize = 2_000_000;
+
 /// Layers of peeling kept of each part type's options and of each merge.
 const DEPTH: usize = 6;
 
@@ -564,10 +576,12 @@ fn analytic_frontier(an: &Analytic, space: &SearchSpace) -> (Vec<Candidate>, usi
                     });
                 }
             }
-            layers(v, |o| (o.cost, o.weighted), DEPTH)
+            let mut kept: Vec<PartOption> = layers(v, |o| (o.cost, o.weighted), DEPTH)
                 .into_iter()
                 .map(|(_, o)| o)
-                .collect::<Vec<_>>()
+                .collect();
+            kept.truncate(MAX_OPTIONS);
+            kept
         })
         .collect();
     let mut layers_kept: Vec<Vec<Node>> = Vec::with_capacity(options.len());
@@ -581,6 +595,9 @@ fn analytic_frontier(an: &Analytic, space: &SearchSpace) -> (Vec<Candidate>, usi
     }];
     let mut scored = 0usize;
     for opts in &options {
+        // Bound the work and memory of one merge: the cheapest layers of
+        // the previous one first.
+        prev.truncate((MAX_MERGED / opts.len().max(1)).max(1));
         let mut next: Vec<Node> = Vec::with_capacity(prev.len() * opts.len());
         for (i, node) in prev.iter().enumerate() {
             for (o, opt) in opts.iter().enumerate() {
