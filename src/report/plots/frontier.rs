@@ -186,10 +186,24 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
             ))
             .map_err(pe(FIG))?;
             let w = text_width(name, 13.0);
-            let spot = [(px + 10, py + 4), (px - w - 10, py + 4), (px + 10, py - 20)]
-                .into_iter()
-                .find(|&(x, y)| placed.free((x, y, x + w, y + 15)))
-                .unwrap_or((px + 10, py + 4));
+            let tries = [
+                (px + 10, py + 4),
+                (px - w - 10, py + 4),
+                (px + 10, py - 20),
+                (px - w - 10, py - 20),
+            ];
+            let fits = |x: i32, y: i32| {
+                x >= plot.0.start
+                    && x + w <= plot.0.end
+                    && y >= plot.1.start
+                    && y + 15 <= plot.1.end
+            };
+            let spot = tries
+                .iter()
+                .copied()
+                .find(|&(x, y)| placed.free((x, y, x + w, y + 15)) && fits(x, y))
+                .or_else(|| tries.iter().copied().find(|&(x, y)| fits(x, y)))
+                .unwrap_or(tries[1]);
             placed.take((spot.0, spot.1, spot.0 + w, spot.1 + 15));
             text(
                 root,
@@ -249,17 +263,32 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
             text(root, p.name(), spot, &st, FIG)?;
         }
 
-        let mut legend = vec![
-            (
-                format!("all simulated in the search ({} trials)", v.search_trials),
-                Swatch::Dot(FAINT),
-            ),
-            (
-                "non-dominated, on fresh trials, 95\u{a0}% intervals".into(),
-                Swatch::Line(line),
-            ),
-            ("named in the summary".into(), Swatch::Ring(INK)),
-        ];
+        // Shorter words when the scenario's own policies take a place too.
+        let mut legend = if named.is_empty() {
+            vec![
+                (
+                    format!("all simulated in the search ({} trials)", v.search_trials),
+                    Swatch::Dot(FAINT),
+                ),
+                (
+                    "non-dominated, on fresh trials, 95\u{a0}% intervals".into(),
+                    Swatch::Line(line),
+                ),
+                ("named in the summary".into(), Swatch::Ring(INK)),
+            ]
+        } else {
+            vec![
+                (
+                    format!("searched ({} trials)", v.search_trials),
+                    Swatch::Dot(FAINT),
+                ),
+                (
+                    "non-dominated, fresh trials, 95\u{a0}% intervals".into(),
+                    Swatch::Line(line),
+                ),
+                ("in the summary".into(), Swatch::Ring(INK)),
+            ]
+        };
         if !named.is_empty() {
             legend.push(("the scenario's own".into(), Swatch::Square(mark)));
         }
