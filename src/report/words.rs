@@ -227,7 +227,11 @@ fn measure_words(v: &View<'_>) -> String {
 /// The short findings.
 fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
     let mut items = Vec::new();
-    let target = pct_trim(v.target, 1);
+    let target = match v.model.ready {
+        None => pct_trim(v.target, 1),
+        Some(_) => v.target_words(),
+    };
+    let target_words = v.target_words();
     let cur = v.cur();
     match v.kind {
         Kind::Frontier => {
@@ -236,7 +240,7 @@ fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
                 t("The cheapest policy found, "),
                 c(first.name()),
                 t(format!(
-                    ", costs {}{cur} over the horizon and meets {target} availability in ",
+                    ", costs {}{cur} over the horizon and meets {target_words} in ",
                     money_short(first.cost.mean)
                 )),
                 b(chance_pct(first.chance.value)),
@@ -292,7 +296,7 @@ fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
             items.push(vec![
                 t("Policy "),
                 c(p.name()),
-                t(format!(" meets {target} availability in ")),
+                t(format!(" meets {target_words} in ")),
                 b(chance_pct(p.chance.value)),
                 t(format!(
                     " of simulated futures (95 % interval {} to {}); availability is between {} and {} in 80 % of them.",
@@ -884,10 +888,16 @@ fn assumptions(v: &View<'_>) -> Vec<Block> {
             model.seed
         ))]),
     }
-    items.push(vec![t(format!(
-        "Target: at least {} fleet availability (up unit-hours over scheduled unit-hours in a trial). Chances are shares of trials, with Wilson 95 % intervals.",
-        pct_trim(v.target, 1)
-    ))]);
+    items.push(vec![t(match &model.ready {
+        None => format!(
+            "Target: at least {} fleet availability (up unit-hours over scheduled unit-hours in a trial). Chances are shares of trials, with Wilson 95 % intervals.",
+            pct_trim(v.target, 1)
+        ),
+        Some(_) => format!(
+            "Target: {} (a trial meets it when the share of its horizon with every site at its count is at least that). Chances are shares of trials, with Wilson 95 % intervals; the chances at availability levels read fleet availability (up unit-hours over scheduled unit-hours).",
+            v.target_in_full()
+        ),
+    })]);
     items.push(vec![t(format!("Cost measure: {}.", measure_words(v)))]);
     items.push(vec![t(format!(
         "Downtime penalty: {}{cur} per unit-hour down.",
@@ -1009,10 +1019,10 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
             t(" Scenario "),
             c(&model.name),
             t(format!(
-                ": {} units over {} operating hours; target at least {} fleet availability; {}. This report shows {what}.",
+                ": {} units over {} operating hours; target {}; {}. This report shows {what}.",
                 model.units.len(),
                 num(model.horizon, 0),
-                pct_trim(v.target, 1),
+                v.target_in_full(),
                 if model.currency.is_empty() {
                     "costs in the scenario's money".to_string()
                 } else {
