@@ -683,7 +683,7 @@ fn cost_table(v: &View<'_>) -> Block {
     head.extend(chosen.iter().map(|p| p.name().to_string()));
     let comps: Vec<Vec<(&'static str, f64)>> = chosen
         .iter()
-        .map(|p| super::plots::components(p, v.measure.basis))
+        .map(|p| super::plots::components(v.model, p, v.measure.basis))
         .collect();
     let mut rows: Vec<Vec<String>> = Vec::new();
     if let Some(first) = comps.first() {
@@ -974,6 +974,26 @@ fn files(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
             t(": the machine-readable result, the same as the command's --json output."),
         ],
     ];
+    if v.model.has_sites() {
+        items.push(vec![
+            Span::File("sites.csv".into()),
+            t(format!(": one row per site for {per}: its ready count, the chance it holds it, units up, stock-outs, waiting demands and lateral transfers, beside the mean-life plan's expected units up.")),
+        ]);
+        items.push(vec![
+            Span::File("units-up.csv".into()),
+            t(": the share of the horizon with exactly each count of units up, for the fleet (site empty) and for each site."),
+        ]);
+        items.push(vec![
+            Span::File("stores.csv".into()),
+            t(": the stock of each part type at each site and at the depot, beside the mean-life plan's spares on their way to that store."),
+        ]);
+    }
+    if v.model.has_rotables() {
+        items.push(vec![
+            Span::File("rotables.csv".into()),
+            t(": each rotable's repair loop: removals, repairs, condemnations, the number in repair (simulated and by the mean-life plan), the repair time, the turnaround and the wait for a channel."),
+        ]);
+    }
     for f in figures {
         items.push(vec![
             Span::File(f.file.clone()),
@@ -1054,6 +1074,7 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
     )]));
     doc.extend(fig("exceedance.svg"));
     doc.push(chance_table(v));
+    doc.extend(super::network::sections(v, figures));
     doc.push(Block::Heading(
         2,
         "Where the mean-life plan goes wrong".into(),
