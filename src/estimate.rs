@@ -3,7 +3,8 @@
 //! what would work.
 //!
 //! Owns: the event-count model of one trial (renewals per position from the
-//! life distribution, the rule and the repair time), the memory model of a
+//! life distribution, the rule and the repair time; one more event per
+//! renewal with a depot, for its shipment), the memory model of a
 //! run (per-trial figures kept for percentiles, per-thread workspaces, the
 //! model itself), the calibration of both against benchmark B1, and the
 //! limits.
