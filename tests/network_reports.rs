@@ -160,8 +160,8 @@ fn new_sections_only_where_the_scenario_has_them() {
 }
 
 /// The estimate of a B2 trial's events leans above the events counted
-/// (1 958 per trial on the reference policy, docs/performance.md) but not
-/// by more than three times; its shard bytes are within 30 % of a written
+/// (1 958 per trial on the reference policy, docs/performance.md; the
+/// estimate says about 4 900) but not by more than three times; its shard bytes are within 30 % of a written
 /// shard's (measured here).
 #[test]
 fn estimate_covers_b2() {

@@ -118,9 +118,12 @@ fn result_json_is_the_json_output() {
     let on_disk = |d: &Path| std::fs::read(d.join("result.json")).expect("result.json");
 
     let front = dir.join("frontier");
+    // The frontier search does not cover the demo's sites yet: the 2026 demo.
+    let demo_2026 = common::demo_2026_path();
     let printed = run(
         &[
             "frontier",
+            &demo_2026,
             "--trials",
             "100",
             "--validate-trials",

@@ -35,11 +35,12 @@ pub fn load(name: &str) -> Model {
 /// (`tests/data/demo-2026.toml`): one store, an availability target, a
 /// frontier the search covers.
 pub fn demo_2026_text() -> String {
-    std::fs::read_to_string(format!(
-        "{}/tests/data/demo-2026.toml",
-        env!("CARGO_MANIFEST_DIR")
-    ))
-    .expect("fixture")
+    std::fs::read_to_string(demo_2026_path()).expect("fixture")
+}
+
+/// The path of the 2026 demo fixture.
+pub fn demo_2026_path() -> String {
+    format!("{}/tests/data/demo-2026.toml", env!("CARGO_MANIFEST_DIR"))
 }
 
 /// The 2026 demo fixture, loaded.
