@@ -3,7 +3,8 @@
 //! what would work.
 //!
 //! Owns: the event-count model of one trial (renewals per position from the
-//! life distribution, the rule and the repair time), the memory model of a
+//! life distribution, the rule and the repair time; the same with sites,
+//! a depot and rotables), the memory model of a
 //! run (per-trial figures kept for percentiles, per-thread workspaces, the
 //! model itself), the calibration of both against benchmark B1, and the
 //! limits.
@@ -68,6 +69,11 @@ pub const BASE_BYTES: f64 = 24.0e6;
 /// (measured on B1; see docs/performance.md).
 pub const SHARD_BYTES_FIXED: f64 = 36.0;
 pub const SHARD_BYTES_PER_PART: f64 = 26.0;
+/// Shard-file bytes per site (its up, ready and backorder hours, its
+/// counts) and per part type's network figures (repairs, requests,
+/// shipments, transfers, their costs and hours), per record.
+pub const SHARD_BYTES_PER_SITE: f64 = 27.0;
+pub const SHARD_BYTES_PER_NETWORK_PART: f64 = 20.0;
 
 /// The largest money one trial may add up: beyond it the squares taken for
 /// standard errors overflow double precision (about 1.8e308).
@@ -300,6 +306,12 @@ pub fn trial_work(model: &Model, parts: &[PartPolicy], active: Option<usize>) ->
             }
         })
         .collect();
+    // A depot's shipments and a rotable's returns from repair take the
+    // place of a consumable's order arrivals (and are booked when a store
+    // is next used unless someone waits): no more events per renewal. On
+    // B2's reference policy this estimates 4 900 events per trial against
+    // 1 958 counted (tests/network_reports.rs).
+    let events_per_renewal = EVENTS_PER_RENEWAL;
     let mut events = 0.0;
     let mut nanos = 0.0;
     let fleet_factor = 0.5 + 0.1 * (model.units.len() as f64 + 1.0).log2();
@@ -307,7 +319,7 @@ pub fn trial_work(model: &Model, parts: &[PartPolicy], active: Option<usize>) ->
         let n_pos = unit.parts.len() as f64;
         let mut e = 0.0;
         for &p in &unit.parts {
-            e += EVENTS_PER_RENEWAL * per_part[p];
+            e += events_per_renewal * per_part[p];
         }
         events += e;
         // An event scans its unit's positions for the next one and updates
@@ -325,20 +337,30 @@ pub fn trial_work(model: &Model, parts: &[PartPolicy], active: Option<usize>) ->
     // rate of an unused stock does not make NaN); a rate that is not finite
     // makes the bound infinite.
     let times = |rate: f64, count: f64| if count == 0.0 { 0.0 } else { rate * count };
-    let mut finite = model.downtime_penalty.is_finite();
+    // Each renewal may also pay a repair (the dearer of the two), a
+    // shipment from the depot and a lateral transfer.
+    let shipment = model.depot.as_ref().map_or(0.0, |d| d.cost_per_shipment);
+    let transfer = model.lateral.as_ref().map_or(0.0, |l| l.cost_per_transfer);
+    let mut finite =
+        model.downtime_penalty.is_finite() && shipment.is_finite() && transfer.is_finite();
     let mut money = times(model.downtime_penalty, model.units.len() as f64 * h);
     for (p, (pt, pp)) in model.parts.iter().zip(parts).enumerate() {
+        let repair = pt
+            .repair
+            .as_ref()
+            .map_or(0.0, |r| r.cost_planned.max(r.cost_failed));
         finite &= [
             pt.price,
             pt.labour_planned,
             pt.labour_unplanned,
             pt.holding_per_hour,
+            repair,
         ]
         .iter()
         .all(|x| x.is_finite());
         let stock = f64::from(pp.stock.total());
         money += times(
-            pt.price + pt.labour_planned + pt.labour_unplanned,
+            pt.price + pt.labour_planned + pt.labour_unplanned + repair + shipment + transfer,
             (per_part[p] + 1.0) * installed[p] as f64,
         );
         money += times(pt.holding_per_hour * h, stock) + times(pt.price, stock);
@@ -368,14 +390,57 @@ pub fn model_bytes(model: &Model) -> f64 {
     positions(model) * 8.0 + model.units.len() as f64 * MODEL_BYTES_PER_UNIT
 }
 
-/// Bytes of one decoded outcome (a block of them is held per policy).
+/// Bytes of one decoded outcome (a block of them is held per policy):
+/// the fixed figures, each part type's, the hours by units up (fleet and
+/// per site) and each site's figures.
 fn outcome_bytes(model: &Model) -> f64 {
+    let units = model.units.len() as f64;
+    let sites = if model.has_sites() {
+        model.sites.len() as f64
+    } else {
+        0.0
+    };
     96.0 + 72.0 * model.parts.len() as f64
+        + 8.0 * (units + 1.0) * (1.0 + sites.min(1.0))
+        + 80.0 * sites
 }
 
-/// Estimated shard-file bytes per record of `model`.
+/// Bytes a summary keeps per trial and policy: [`BYTES_PER_KEPT_TRIAL`],
+/// and under a ready-units target each trial's readiness and each site's
+/// hours at its count (with their sorted copies and slack).
+pub fn kept_bytes_per_trial(model: &Model) -> f64 {
+    match &model.ready {
+        None => BYTES_PER_KEPT_TRIAL,
+        Some(_) => {
+            let sites = if model.has_sites() {
+                model.sites.len() as f64
+            } else {
+                0.0
+            };
+            BYTES_PER_KEPT_TRIAL + 16.0 * (1.0 + sites)
+        }
+    }
+}
+
+/// Estimated shard-file bytes per record of `model`: a fixed part, a part
+/// per part type, the hours by units up (nonzero counts only, about
+/// 2 + 0.4 per unit of them, 9 bytes each), and with sites each site's
+/// figures and hours by units up (about 2 + 0.3 per unit) and each part
+/// type's network figures. Measured on 2 000 trials (format 2, 2026-12):
+/// B0 148, the 2026 demo 230, B1 341, the demo with garages 521 and B2
+/// 595 bytes per record; this gives 154, 244, 354, 479 and 722.
 pub fn shard_bytes_per_record(model: &Model) -> f64 {
-    SHARD_BYTES_FIXED + SHARD_BYTES_PER_PART * model.parts.len() as f64
+    let entries = |n: usize| (2.0 + 0.4 * n as f64).min(n as f64 + 1.0);
+    let mut b = SHARD_BYTES_FIXED
+        + SHARD_BYTES_PER_PART * model.parts.len() as f64
+        + 9.0 * entries(model.units.len());
+    if model.has_sites() {
+        for n in model.site_units() {
+            b += SHARD_BYTES_PER_SITE + 9.0 * (2.0 + 0.3 * n as f64).min(n as f64 + 1.0);
+        }
+        b += SHARD_BYTES_PER_NETWORK_PART * model.parts.len() as f64;
+    }
+    b
 }
 
 fn busiest_name(model: &Model, w: &TrialWork) -> Option<(String, f64)> {
@@ -418,7 +483,7 @@ pub fn evaluate(
     let bytes = BASE_BYTES
         + model_bytes(model)
         + workspace_bytes(model) * threads as f64
-        + kept * BYTES_PER_KEPT_TRIAL
+        + kept * kept_bytes_per_trial(model)
         + block * 2.0;
     Estimate {
         trial_runs: runs,
@@ -447,7 +512,7 @@ pub fn merge(model: &Model, policies: usize, trials: u64) -> Estimate {
         // Decoding runs at tens of millions of records a second; say 1 us.
         seconds: runs * 1e-6,
         threads: 1,
-        bytes: BASE_BYTES + runs * BYTES_PER_KEPT_TRIAL + model_bytes(model),
+        bytes: BASE_BYTES + runs * kept_bytes_per_trial(model) + model_bytes(model),
         kept_trials: runs,
         shard_bytes: None,
     }
@@ -541,11 +606,11 @@ pub fn frontier(model: &Model, config: &FrontierConfig, threads: usize) -> Estim
         .map(|ps| ps.rules.len() as f64 * f64::from(ps.stock_max - ps.stock_min + 1))
         .sum();
     let screened = if analytic_seed { 0.0 } else { options };
-    let kept = kept_search + k * v + screened * screen_n * 16.0 / BYTES_PER_KEPT_TRIAL;
+    let kept = kept_search + k * v + screened * screen_n * 16.0 / kept_bytes_per_trial(model);
     let bytes = BASE_BYTES
         + model_bytes(model)
         + workspace_bytes(model) * threads as f64
-        + kept * BYTES_PER_KEPT_TRIAL
+        + kept * kept_bytes_per_trial(model)
         + 2.0 * (BLOCK as f64).min(n.max(v)) * outcome_bytes(model);
     let busiest = model
         .parts
@@ -687,12 +752,28 @@ impl Estimate {
                             format!("parts.{}.holding", p.name),
                             p.holding_per_hour * model.horizon,
                         ),
+                        (
+                            format!("parts.{}.repair.cost", p.name),
+                            p.repair
+                                .as_ref()
+                                .map_or(0.0, |r| r.cost_planned.max(r.cost_failed)),
+                        ),
                     ]
                 })
-                .chain([(
-                    "scenario.downtime_penalty_per_hour".to_string(),
-                    model.downtime_penalty * model.horizon,
-                )])
+                .chain([
+                    (
+                        "scenario.downtime_penalty_per_hour".to_string(),
+                        model.downtime_penalty * model.horizon,
+                    ),
+                    (
+                        "depot.cost_per_shipment".to_string(),
+                        model.depot.as_ref().map_or(0.0, |d| d.cost_per_shipment),
+                    ),
+                    (
+                        "lateral.cost_per_transfer".to_string(),
+                        model.lateral.as_ref().map_or(0.0, |l| l.cost_per_transfer),
+                    ),
+                ])
                 .max_by(|a, b| a.1.total_cmp(&b.1))
                 .map(|(f, _)| f)
                 .unwrap_or_default();
@@ -705,11 +786,12 @@ impl Estimate {
         if let Some(have) = available {
             let limit = have * MEMORY_SHARE;
             if self.bytes.is_nan() || self.bytes > limit {
-                let fixed = self.bytes - self.kept_trials * BYTES_PER_KEPT_TRIAL;
-                let what = if self.kept_trials * BYTES_PER_KEPT_TRIAL > fixed {
+                let fixed = self.bytes - self.kept_trials * kept_bytes_per_trial(model);
+                let what = if self.kept_trials * kept_bytes_per_trial(model) > fixed {
                     format!(
                         "{:.0} bytes of figures for each of {:.2e} trial runs, kept for percentiles and chances",
-                        BYTES_PER_KEPT_TRIAL, self.kept_trials
+                        kept_bytes_per_trial(model),
+                        self.kept_trials
                     )
                 } else {
                     format!(
@@ -718,8 +800,8 @@ impl Estimate {
                         model.units.len()
                     )
                 };
-                let fix = if self.kept_trials * BYTES_PER_KEPT_TRIAL > fixed {
-                    let fit = ((limit - fixed).max(0.0) / BYTES_PER_KEPT_TRIAL).floor();
+                let fix = if self.kept_trials * kept_bytes_per_trial(model) > fixed {
+                    let fit = ((limit - fixed).max(0.0) / kept_bytes_per_trial(model)).floor();
                     format!(
                         "at most about {fit:.2e} trial runs fit here; use fewer trials (the standard error of a chance falls as 1/sqrt(trials): 10^6 trials already give it to within 0.1 %)"
                     )

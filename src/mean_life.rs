@@ -27,6 +27,15 @@
 //! share its price) instead of a new part. A ready-units target is met when
 //! every site's expected units up (the sum of its units' availabilities)
 //! reach its count.
+//!
+//! Where the spares sit, the plan reads the same way store by store (the
+//! deterministic picture of METRIC, Sherbrooke 1968, without its Poisson
+//! spread): a site's pipeline is its own demand times the time a spare
+//! takes to reach it (the transport time from the depot, or without a
+//! depot the whole return time); the depot's is the whole fleet's demand
+//! times the return time (repair or purchase). A rotable's number in repair
+//! is its removals that are not condemned times its mean repair time (no
+//! wait for a channel: the plan has no queues).
 
 use crate::model::{Model, Money, Policy, Rule};
 
@@ -41,6 +50,28 @@ pub struct PartPlan {
     /// Parts on their way back at any moment: demand x resupply time (for
     /// a rotable, its repair pipeline).
     pub pipeline: f64,
+    /// With sites: per site, the spares on their way to it at any moment
+    /// (its demand x the transport time from the depot, or without a depot
+    /// x the resupply time).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub site_pipeline: Vec<f64>,
+    /// With a depot: the spares on their way back to it at any moment
+    /// (the fleet's demand x the return time by repair or purchase).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub depot_pipeline: Option<f64>,
+    /// A rotable's parts in repair at any moment (removals not condemned x
+    /// the mean repair time); `None` for a consumable.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub in_repair: Option<f64>,
+}
+
+/// One site in the mean-life plan (scenarios with sites).
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct SitePlan {
+    /// Expected units up: the sum of the site's units' availabilities.
+    pub units_up: f64,
+    /// With a ready-units target: whether `units_up` reaches the count.
+    pub meets_count: Option<bool>,
 }
 
 /// The mean-life plan's prediction for one policy.
@@ -61,6 +92,9 @@ pub struct MeanLifePlan {
     pub meets_target: bool,
     /// Per part type.
     pub parts: Vec<PartPlan>,
+    /// Per site (empty without sites).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub sites: Vec<SitePlan>,
 }
 
 /// Compute the mean-life plan's figures of `policy`.
@@ -165,6 +199,16 @@ pub fn mean_life_plan(model: &Model, policy: &Policy) -> MeanLifePlan {
             penalty += up / cycle[p] * down[p] * model.downtime_penalty;
         }
     }
+    // Demands per part type and site over the horizon (with sites).
+    let has_sites = model.has_sites();
+    let mut site_demands = vec![vec![0.0; model.sites.len()]; n_parts];
+    if has_sites {
+        for (unit, up) in model.units.iter().zip(&up_per_unit) {
+            for &p in &unit.parts {
+                site_demands[p][unit.site] += up / cycle[p];
+            }
+        }
+    }
     let mut parts = Vec::with_capacity(n_parts);
     for (p, part) in model.parts.iter().enumerate() {
         let n = demands[p];
@@ -192,10 +236,41 @@ pub fn mean_life_plan(model: &Model, policy: &Policy) -> MeanLifePlan {
         let rate = n / h;
         let on_hand = (policy.parts[p].stock.total() as f64 - rate * resupply[p]).max(0.0);
         spend += n * (material + labour + shipping) + on_hand * part.holding_per_hour * h;
+        let condemn = part.repair.as_ref().map_or(1.0, |r| {
+            if fails[p] {
+                r.condemn_failed
+            } else {
+                r.condemn_planned
+            }
+        });
+        let site_pipeline = if has_sites {
+            site_demands[p]
+                .iter()
+                .enumerate()
+                .map(|(i, d)| {
+                    let time = match &model.depot {
+                        Some(depot) => depot.transport[i].mean(),
+                        None => resupply[p],
+                    };
+                    d / h * time
+                })
+                .collect()
+        } else {
+            Vec::new()
+        };
         parts.push(PartPlan {
             demand_per_hour: rate,
             resupply_hours: resupply[p],
             pipeline: rate * resupply[p],
+            site_pipeline,
+            depot_pipeline: model
+                .depot
+                .as_ref()
+                .map(|_| rate * part.mean_return(condemn)),
+            in_repair: part
+                .repair
+                .as_ref()
+                .map(|r| rate * (1.0 - condemn) * r.time.mean()),
         });
     }
     let meets_target = match &model.ready {
@@ -206,6 +281,18 @@ pub fn mean_life_plan(model: &Model, policy: &Policy) -> MeanLifePlan {
             .all(|(&up, &k)| up >= k as f64),
         None => availability >= model.target,
     };
+    let sites = if has_sites {
+        site_up
+            .iter()
+            .enumerate()
+            .map(|(i, &up)| SitePlan {
+                units_up: up,
+                meets_count: model.ready.as_ref().map(|r| up >= r.at_least[i] as f64),
+            })
+            .collect()
+    } else {
+        Vec::new()
+    };
     MeanLifePlan {
         availability,
         cost: spend + penalty,
@@ -214,5 +301,6 @@ pub fn mean_life_plan(model: &Model, policy: &Policy) -> MeanLifePlan {
         planned,
         meets_target,
         parts,
+        sites,
     }
 }

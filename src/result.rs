@@ -94,6 +94,13 @@ pub struct SiteJson {
     pub laterals_taken: f64,
     /// Mean share of the horizon with exactly `m` of its units up, `m = 0..=units`.
     pub units_up: Vec<f64>,
+    /// With a ready-units target: the chance that this site alone has its
+    /// count up for at least the share of the horizon, Wilson 95 % interval.
+    pub chance: Option<Chance>,
+    /// The mean-life plan's expected units up at the site (the sum of its
+    /// units' availabilities), and whether that reaches its count.
+    pub mean_life_units_up: f64,
+    pub mean_life_meets_count: Option<bool>,
 }
 
 /// A rotable's repair loop (means per trial).
@@ -109,6 +116,15 @@ pub struct PipelineJson {
     /// Mean turnaround of a part sent to repair, the wait for a channel
     /// included, hours.
     pub turnaround_mean_hours: f64,
+    /// Mean repair time of one part (the distribution's mean, no wait).
+    pub repair_mean_hours: f64,
+    /// The mean wait for a repair channel: turnaround less repair time
+    /// (0 with unlimited channels, up to the noise of the estimate).
+    pub channel_wait_mean_hours: f64,
+    /// Repair channels; null: unlimited.
+    pub channels: Option<u32>,
+    /// The mean-life plan's parts in repair (no queue for channels).
+    pub mean_life_in_repair: f64,
 }
 
 /// Unit-hours down per trial by cause (means with standard errors).
@@ -218,6 +234,7 @@ fn ms(m: &crate::summary::Moments) -> MeanSe {
 impl EvaluateJson {
     /// Build from a summary and its mean-life plan figures.
     pub fn new(model: &Model, s: &Summary, plan: &MeanLifePlan) -> Self {
+        let in_repair = |p: usize| plan.parts.get(p).and_then(|pp| pp.in_repair);
         let a = &s.acc;
         let policy: &Policy = &s.policy;
         let spend = MeanSe {
@@ -261,7 +278,7 @@ impl EvaluateJson {
                 _ => None,
             },
             units_up: shares(&a.units_up, a.n(), model.horizon),
-            sites: sites(model, s),
+            sites: sites(model, s, plan),
             cost: CostJson {
                 total: ms(&a.total),
                 spend,
@@ -302,7 +319,8 @@ impl EvaluateJson {
                 .iter()
                 .zip(&a.per_part)
                 .zip(&policy.parts)
-                .map(|((pt, m), pp)| PartJson {
+                .enumerate()
+                .map(|(p, ((pt, m), pp))| PartJson {
                     name: pt.name.clone(),
                     rule: pp.rule.kind().to_string(),
                     interval: pp.rule.interval(),
@@ -314,12 +332,20 @@ impl EvaluateJson {
                     backorders_mean: m.backorder_hours.mean() / model.horizon,
                     depot_backorders_mean: m.depot_backorder_hours.mean() / model.horizon,
                     on_hand_mean: m.shelf_hours.mean() / model.horizon,
-                    pipeline: pt.repair.as_ref().map(|_| PipelineJson {
+                    pipeline: pt.repair.as_ref().map(|r| PipelineJson {
                         removals: m.repair_entries.mean() + m.condemned.mean(),
                         repairs: m.repairs.mean(),
                         condemned: m.condemned.mean(),
                         in_repair_mean: m.repair_hours.mean() / model.horizon,
                         turnaround_mean_hours: m.mean_turnaround(),
+                        repair_mean_hours: r.time.mean(),
+                        channel_wait_mean_hours: if m.repair_entries.mean() > 0.0 {
+                            (m.mean_turnaround() - r.time.mean()).max(0.0)
+                        } else {
+                            0.0
+                        },
+                        channels: r.channels,
+                        mean_life_in_repair: in_repair(p).unwrap_or(0.0),
                     }),
                     failures: m.failures.mean(),
                     planned: m.planned.mean(),
@@ -367,7 +393,7 @@ fn stock_at(model: &Model, stock: &crate::model::Stock) -> Option<BTreeMap<Strin
 }
 
 /// Per-site figures (scenarios with sites).
-fn sites(model: &Model, s: &Summary) -> Vec<SiteJson> {
+fn sites(model: &Model, s: &Summary, plan: &MeanLifePlan) -> Vec<SiteJson> {
     let units = model.site_units();
     let h = model.horizon;
     s.acc
@@ -396,6 +422,9 @@ fn sites(model: &Model, s: &Summary) -> Vec<SiteJson> {
                 laterals_given: m.laterals_given.mean(),
                 laterals_taken: m.laterals_taken.mean(),
                 units_up: shares(&m.units_up, s.trials(), h),
+                chance: at_least.and_then(|_| s.site_chance_at(i, s.target, h)),
+                mean_life_units_up: plan.sites.get(i).map_or(0.0, |p| p.units_up),
+                mean_life_meets_count: plan.sites.get(i).and_then(|p| p.meets_count),
             }
         })
         .collect()

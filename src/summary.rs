@@ -171,6 +171,9 @@ pub struct SiteMoments {
     pub backorder_hours: Moments,
     /// Sum over trials of the hours with exactly `m` units up.
     pub units_up: Vec<f64>,
+    /// Per trial, in trial order: the hours with at least the site's ready
+    /// count of units up (kept under a ready-units target; else empty).
+    pub trial_ready_hours: Vec<f64>,
 }
 
 impl SiteMoments {
@@ -281,6 +284,9 @@ impl Accumulator {
         }
         for (m, s) in self.per_site.iter_mut().zip(&o.sites) {
             m.push(s);
+            if self.ready {
+                m.trial_ready_hours.push(s.ready_hours);
+            }
         }
         let total = o.total();
         let spend = o.spend();
@@ -434,6 +440,22 @@ impl Summary {
             .filter(|&&a| a >= target)
             .count() as u64;
         wilson(k, self.trials())
+    }
+
+    /// Chance that site `site` alone has at least its ready count of
+    /// units up for at least the share `share` of a `horizon`-hour trial
+    /// (a ready-units target in force; `None` otherwise).
+    pub fn site_chance_at(&self, site: usize, share: f64, horizon: f64) -> Option<Chance> {
+        let m = self.acc.per_site.get(site)?;
+        if !self.acc.ready || m.trial_ready_hours.len() as u64 != self.trials() {
+            return None;
+        }
+        let k = m
+            .trial_ready_hours
+            .iter()
+            .filter(|&&h| h / horizon >= share)
+            .count() as u64;
+        Some(wilson(k, self.trials()))
     }
 
     /// Chance of meeting the scenario's target.

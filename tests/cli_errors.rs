@@ -186,7 +186,7 @@ fn policy_names_a_missing_part_or_leaves_one_out() {
 
 #[test]
 fn safety_critical_part_run_to_failure_or_past_its_limit() {
-    let demo = scenario("demo");
+    let demo = common::demo_2026_text();
     let line = "brake_actuator = { rule = \"age\", interval_hours = 8000, stock = 2 }";
     assert!(demo.contains(line));
     refuses(
@@ -281,7 +281,7 @@ fn contradictory_or_empty_fields() {
         ),
         &["units.loader.positions", "`pump#2`"],
     );
-    let demo = scenario("demo");
+    let demo = common::demo_2026_text();
     refuses(
         "safety_false",
         &demo.replacen("safety_critical = true", "safety_critical = false", 1),

@@ -140,7 +140,7 @@ stock = {{ min = 1, max = 1 }}
 /// actuator has a hard limit).
 #[test]
 fn reported_frontier_is_honest() {
-    let m = load("demo");
+    let m = common::demo_2026();
     let r = search(&m, &config(300, 600, m.target, false), &Quiet).unwrap();
     assert!(r.points.len() >= 2);
     let pts: Vec<(f64, f64)> = r
@@ -176,7 +176,7 @@ fn reported_frontier_is_honest() {
 /// thread count.
 #[test]
 fn frontier_is_reproducible_across_threads() {
-    let m = load("demo");
+    let m = common::demo_2026();
     let run = |threads| {
         let pool = rayon::ThreadPoolBuilder::new()
             .num_threads(threads)

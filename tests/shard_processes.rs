@@ -87,6 +87,73 @@ fn parallel_processes_merge_to_the_single_run() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
+/// B2 (sites, a depot, lateral supply, rotables, a ready-units target):
+/// the merged table, JSON and report equal the single run's, file by file
+/// (the report's `trials.csv` re-runs the trials, so it checks them too).
+#[test]
+fn b2_shards_merge_to_the_single_run_table_json_and_report() {
+    let b2 = scenario("b2");
+    let dir = temp_dir("shards-b2");
+    let single_report = dir.join("single");
+    let merged_report = dir.join("merged");
+    let args = ["evaluate", &b2, "--policy", "reference", "--trials", "240"];
+    let single_json = ok(bin().args(args).arg("--json").output().unwrap(), "single");
+    let single_text = ok(
+        bin()
+            .args(args)
+            .arg("--report")
+            .arg(&single_report)
+            .output()
+            .unwrap(),
+        "single text",
+    );
+    let mut files = run_shards(&args, 3, 1, &dir);
+    files.reverse();
+    assert_eq!(ok(merge(&files, true), "merge"), single_json);
+    let merged_text = ok(
+        bin()
+            .arg("merge")
+            .args(&files)
+            .arg("--report")
+            .arg(&merged_report)
+            .output()
+            .unwrap(),
+        "merge text",
+    );
+    // The last line names the report's folder, which differs.
+    let body = |s: &str| {
+        s.lines()
+            .filter(|l| !l.starts_with("report written"))
+            .collect::<Vec<_>>()
+            .join("\n")
+    };
+    assert_eq!(body(&merged_text), body(&single_text));
+    assert!(single_text.contains("north"), "the table shows the sites");
+    let mut names: Vec<String> = std::fs::read_dir(&single_report)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    for want in [
+        "sites.csv",
+        "units-up.csv",
+        "stores.csv",
+        "rotables.csv",
+        "units-up.svg",
+    ] {
+        assert!(names.iter().any(|n| n == want), "{want} missing: {names:?}");
+    }
+    for name in &names {
+        let a = std::fs::read(single_report.join(name)).unwrap();
+        let b = std::fs::read(merged_report.join(name)).unwrap();
+        assert!(
+            a == b,
+            "{name} differs between the single run and the merge"
+        );
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
 #[test]
 fn frontier_validation_spread_over_processes() {
     let b0 = scenario("b0");

@@ -23,6 +23,7 @@
 
 mod doc;
 mod html;
+mod network;
 mod plots;
 mod tables;
 mod view;
@@ -253,6 +254,14 @@ fn figures(v: &View<'_>) -> Result<Vec<doc::Figure>, ReportError> {
         "Mean cost over the horizon by component, and the initial stock's capital.".into(),
         "Stacked horizontal bars of cost components per policy.".into(),
     );
+    if v.model.has_sites() {
+        add(
+            "units-up.svg",
+            plots::units_up(v)?,
+            "Units up at each site: the share of the time with exactly that many units up, for the policies singled out; the pale band is short of the site's ready count, the diamonds the mean-life plan's expected units up.".into(),
+            "One panel per site: bars of the share of the horizon at each count of units up, per policy, with the ready count marked by a dashed line.".into(),
+        );
+    }
     add(
         "life.svg",
         plots::life(v)?,
@@ -301,6 +310,14 @@ fn assemble(
     r.push("frontier.csv", tables::frontier_csv(v)?);
     r.push("policies.csv", tables::policies_csv(v)?);
     r.push("trials.csv", tables::trials_csv(model, v, progress)?);
+    if model.has_sites() {
+        r.push("sites.csv", tables::sites_csv(v)?);
+        r.push("units-up.csv", tables::units_up_csv(v)?);
+        r.push("stores.csv", tables::stores_csv(v)?);
+    }
+    if model.has_rotables() {
+        r.push("rotables.csv", tables::rotables_csv(v)?);
+    }
     r.push("result.json", json);
     for f in figs {
         r.push(f.file, f.svg.into_bytes());

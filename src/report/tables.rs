@@ -1,7 +1,11 @@
 //! The report's CSV files: `frontier.csv` (every point of the frontier
 //! figure), `policies.csv` (one row per reported policy, every figure the
 //! report quotes) and `trials.csv` (one row per trial of each reported
-//! policy, with the cost components).
+//! policy, with the cost components); with sites `sites.csv` (one row per
+//! policy and site), `units-up.csv` (the hours by units up, long form) and
+//! `stores.csv` (the stock at each store beside the mean-life plan's
+//! pipeline there); with rotables `rotables.csv` (the repair loop per
+//! policy and rotable).
 //!
 //! Owns: the CSV columns and the re-run of the reported trials.
 //! May use: `csv`, `sim`, `run`, `outcome`, `result`, `model`,
@@ -15,7 +19,7 @@
 //! the kept ones bit for bit. This costs one more pass over the reported
 //! trials but keeps memory flat for every other run.
 
-use crate::model::{Model, Rule};
+use crate::model::{Measure, Model, Rule};
 use crate::result::cost_measure_label;
 use crate::run::{Progress, for_each_trial};
 use crate::sim::Simulator;
@@ -241,7 +245,23 @@ pub fn trials_csv(
     progress: &dyn Progress,
 ) -> Result<Vec<u8>, ReportError> {
     let mut w = csv::Writer::from_writer(Vec::new());
-    w.write_record(TRIAL_COLUMNS).map_err(csv_err)?;
+    // A ready-units target, rotables and a depot or lateral supply add
+    // their columns after the others (a scenario without them keeps its
+    // file as it was); `meets_target` is of the target in force.
+    let ready = model.ready.is_some();
+    let repair = model.has_rotables();
+    let transport = model.depot.is_some() || model.lateral.is_some();
+    let mut head: Vec<&str> = TRIAL_COLUMNS.to_vec();
+    if ready {
+        head.push("readiness");
+    }
+    if repair {
+        head.push("repair");
+    }
+    if transport {
+        head.push("transport");
+    }
+    w.write_record(&head).map_err(csv_err)?;
     let total: u64 = v.policies.iter().map(|p| p.summary.trials()).sum();
     progress.phase("report", total);
     for p in &v.policies {
@@ -273,12 +293,16 @@ pub fn trials_csv(
                 return;
             }
             let sum = |f: fn(&crate::outcome::PartOutcome) -> f64| o.sum(f);
-            let record = [
+            let measured = match s.measure {
+                Measure::Availability => o.availability,
+                Measure::Readiness => o.readiness,
+            };
+            let mut record = vec![
                 p.name().to_string(),
                 p.code.clone(),
                 t.to_string(),
                 full(o.availability),
-                u8::from(o.availability >= s.target).to_string(),
+                u8::from(measured >= s.target).to_string(),
                 cents(sum(|x| x.parts_cost)),
                 cents(sum(|x| x.labour_planned)),
                 cents(sum(|x| x.labour_unplanned)),
@@ -288,6 +312,15 @@ pub fn trials_csv(
                 cents(capital),
                 cents(o.spend() + capital),
             ];
+            if ready {
+                record.push(full(o.readiness));
+            }
+            if repair {
+                record.push(cents(sum(|x| x.repair_planned + x.repair_failed)));
+            }
+            if transport {
+                record.push(cents(sum(|x| x.transport_cost)));
+            }
             if let Err(e) = w.write_record(&record) {
                 failed = Some(csv_err(e));
             }
@@ -297,6 +330,198 @@ pub fn trials_csv(
         }
         if !done {
             return Err(ReportError::Interrupted);
+        }
+    }
+    finish(w)
+}
+
+/// `sites.csv`: one row per reported policy and site.
+pub fn sites_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
+    let model = v.model;
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record([
+        "policy",
+        "site",
+        "units",
+        "at_least",
+        "share",
+        "chance",
+        "chance_lo",
+        "chance_hi",
+        "ready_share_mean",
+        "units_up_mean",
+        "availability",
+        "plan_units_up",
+        "plan_meets_count",
+        "stockouts",
+        "backorders_mean",
+        "laterals_given",
+        "laterals_taken",
+    ])
+    .map_err(csv_err)?;
+    for p in &v.policies {
+        for (i, site) in model.sites.iter().enumerate() {
+            let Some(sv) = p.site(model, i) else { continue };
+            let ch = sv.chance;
+            w.write_record([
+                p.name().to_string(),
+                site.name.clone(),
+                sv.units.to_string(),
+                sv.at_least.map(|k| k.to_string()).unwrap_or_default(),
+                if sv.at_least.is_some() {
+                    full(p.summary.target)
+                } else {
+                    String::new()
+                },
+                ch.map(|c| full(c.value)).unwrap_or_default(),
+                ch.map(|c| full(c.lo)).unwrap_or_default(),
+                ch.map(|c| full(c.hi)).unwrap_or_default(),
+                if sv.at_least.is_some() {
+                    full(sv.ready_share)
+                } else {
+                    String::new()
+                },
+                full(sv.units_up_mean),
+                if sv.units > 0 {
+                    full(sv.units_up_mean / sv.units as f64)
+                } else {
+                    String::new()
+                },
+                full(sv.plan_units_up),
+                sv.plan_meets.map(|m| m.to_string()).unwrap_or_default(),
+                full(sv.stockouts),
+                full(sv.backorders),
+                full(sv.laterals_given),
+                full(sv.laterals_taken),
+            ])
+            .map_err(csv_err)?;
+        }
+    }
+    finish(w)
+}
+
+/// `units-up.csv`: per reported policy, the mean share of the horizon with
+/// exactly `units_up` units up, fleet-wide (`site` empty) and per site.
+pub fn units_up_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
+    let model = v.model;
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record(["policy", "site", "units_up", "share"])
+        .map_err(csv_err)?;
+    let h = model.horizon;
+    for p in &v.policies {
+        let n = p.summary.trials().max(1) as f64;
+        for (m, x) in p.summary.acc.units_up.iter().enumerate() {
+            w.write_record([
+                p.name().to_string(),
+                String::new(),
+                m.to_string(),
+                full(x / (n * h)),
+            ])
+            .map_err(csv_err)?;
+        }
+        for (i, site) in model.sites.iter().enumerate() {
+            let Some(sv) = p.site(model, i) else { continue };
+            for (m, x) in sv.shares.iter().enumerate() {
+                w.write_record([
+                    p.name().to_string(),
+                    site.name.clone(),
+                    m.to_string(),
+                    full(*x),
+                ])
+                .map_err(csv_err)?;
+            }
+        }
+    }
+    finish(w)
+}
+
+/// `stores.csv`: per reported policy, part type and store (each site, and
+/// `depot`), the stock held and the mean-life plan's spares on their way
+/// to that store.
+pub fn stores_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
+    let model = v.model;
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record(["policy", "part", "store", "stock", "plan_pipeline"])
+        .map_err(csv_err)?;
+    for p in &v.policies {
+        for (k, part) in model.parts.iter().enumerate() {
+            let pp = &p.policy.parts[k];
+            let plan = &p.plan.parts[k];
+            for (i, site) in model.sites.iter().enumerate() {
+                w.write_record([
+                    p.name().to_string(),
+                    part.name.clone(),
+                    site.name.clone(),
+                    pp.stock.site(i).to_string(),
+                    plan.site_pipeline
+                        .get(i)
+                        .map(|x| full(*x))
+                        .unwrap_or_default(),
+                ])
+                .map_err(csv_err)?;
+            }
+            if model.depot.is_some() {
+                w.write_record([
+                    p.name().to_string(),
+                    part.name.clone(),
+                    "depot".to_string(),
+                    pp.stock.depot().to_string(),
+                    plan.depot_pipeline.map(full).unwrap_or_default(),
+                ])
+                .map_err(csv_err)?;
+            }
+        }
+    }
+    finish(w)
+}
+
+/// `rotables.csv`: per reported policy and rotable, the repair loop.
+pub fn rotables_csv(v: &View<'_>) -> Result<Vec<u8>, ReportError> {
+    let model = v.model;
+    let h = model.horizon;
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record([
+        "policy",
+        "part",
+        "pool",
+        "channels",
+        "removals",
+        "repairs",
+        "condemned",
+        "in_repair_mean",
+        "plan_in_repair",
+        "repair_mean_hours",
+        "turnaround_mean_hours",
+        "channel_wait_mean_hours",
+        "repair_cost",
+    ])
+    .map_err(csv_err)?;
+    for p in &v.policies {
+        for (k, part) in model.parts.iter().enumerate() {
+            let Some(r) = &part.repair else { continue };
+            let m = &p.summary.acc.per_part[k];
+            let sent = m.repair_entries.mean();
+            let turnaround = m.mean_turnaround();
+            w.write_record([
+                p.name().to_string(),
+                part.name.clone(),
+                p.policy.parts[k].stock.total().to_string(),
+                r.channels.map(|c| c.to_string()).unwrap_or_default(),
+                full(sent + m.condemned.mean()),
+                full(m.repairs.mean()),
+                full(m.condemned.mean()),
+                full(m.repair_hours.mean() / h),
+                full(p.plan.parts[k].in_repair.unwrap_or(0.0)),
+                full(r.time.mean()),
+                full(turnaround),
+                full(if sent > 0.0 {
+                    (turnaround - r.time.mean()).max(0.0)
+                } else {
+                    0.0
+                }),
+                full(m.repair_planned.mean() + m.repair_failed.mean()),
+            ])
+            .map_err(csv_err)?;
         }
     }
     finish(w)

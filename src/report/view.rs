@@ -108,10 +108,68 @@ impl PolicyView<'_> {
         PoissonPipeline::new(self.lead_time_demand(model, p)).ok()
     }
 
-    /// Chance that availability reaches at least `level`.
+    /// Chance that availability reaches at least `level` (whatever the
+    /// target in force: the levels the report reads are availabilities).
     pub fn chance_at(&self, level: f64) -> f64 {
-        self.summary.chance_at(level).value
+        self.summary.availability_chance_at(level).value
     }
+
+    /// Site `i`'s figures, when the scenario names sites.
+    pub fn site(&self, model: &Model, i: usize) -> Option<SiteView> {
+        if !model.has_sites() {
+            return None;
+        }
+        let m = self.summary.acc.per_site.get(i)?;
+        let h = model.horizon;
+        let n = self.summary.trials().max(1) as f64;
+        let units = model.site_units()[i];
+        let shares: Vec<f64> = m.units_up.iter().map(|x| x / (n * h)).collect();
+        let at_least = model.ready.as_ref().map(|r| r.at_least[i]);
+        Some(SiteView {
+            units,
+            at_least,
+            chance: self.summary.site_chance_at(i, self.summary.target, h),
+            ready_share: m.ready_hours.mean() / h,
+            units_up_mean: if units > 0 {
+                m.up_hours.mean() / h
+            } else {
+                0.0
+            },
+            plan_units_up: self.plan.sites.get(i).map_or(f64::NAN, |p| p.units_up),
+            plan_meets: self.plan.sites.get(i).and_then(|p| p.meets_count),
+            stockouts: m.stockouts.mean(),
+            backorders: m.backorder_hours.mean() / h,
+            laterals_given: m.laterals_given.mean(),
+            laterals_taken: m.laterals_taken.mean(),
+            shares,
+        })
+    }
+}
+
+/// One site's figures for one policy (means per trial).
+#[derive(Debug, Clone)]
+pub struct SiteView {
+    pub units: usize,
+    /// The ready count, with a ready-units target.
+    pub at_least: Option<u32>,
+    /// Chance that the site alone holds its count for the share of the
+    /// horizon (with a ready-units target).
+    pub chance: Option<Chance>,
+    /// Mean share of the horizon with at least the count up.
+    pub ready_share: f64,
+    /// Time-average units up.
+    pub units_up_mean: f64,
+    /// The mean-life plan's expected units up, and whether it meets the count.
+    pub plan_units_up: f64,
+    pub plan_meets: Option<bool>,
+    pub stockouts: f64,
+    /// Time-average demands waiting for a spare at the site.
+    pub backorders: f64,
+    pub laterals_given: f64,
+    pub laterals_taken: f64,
+    /// Mean share of the horizon with exactly `m` units up (empty when the
+    /// run did not count units up).
+    pub shares: Vec<f64>,
 }
 
 /// What kind of run the report describes.
@@ -194,6 +252,51 @@ impl<'a> View<'a> {
     /// The chosen policies' views.
     pub fn chosen_views(&self) -> impl Iterator<Item = &PolicyView<'a>> {
         self.chosen.iter().map(|&i| &self.policies[i])
+    }
+
+    /// The target in force in a few words: `95 % availability`, or `the
+    /// ready-units target`.
+    pub fn target_words(&self) -> String {
+        match &self.model.ready {
+            None => format!("{} availability", pct_trim(self.target, 1)),
+            Some(_) => "the ready-units target".to_string(),
+        }
+    }
+
+    /// The target in force in full: `at least 95 % fleet availability`, or
+    /// `at least 18 units ready at north, 14 at east and 10 at south, all
+    /// at once, for at least 95 % of the horizon`.
+    pub fn target_in_full(&self) -> String {
+        match &self.model.ready {
+            None => format!("at least {} fleet availability", pct_trim(self.target, 1)),
+            Some(r) => {
+                let bits: Vec<String> = self
+                    .model
+                    .sites
+                    .iter()
+                    .zip(&r.at_least)
+                    .enumerate()
+                    .map(|(i, (s, k))| {
+                        if i == 0 {
+                            format!("{k} units ready at {}", display(&s.name))
+                        } else {
+                            format!("{k} at {}", display(&s.name))
+                        }
+                    })
+                    .collect();
+                let list = match bits.split_last() {
+                    Some((last, rest)) if !rest.is_empty() => {
+                        format!("{} and {last}", rest.join(", "))
+                    }
+                    _ => bits.join(""),
+                };
+                format!(
+                    "at least {list}{}, for at least {} of the horizon",
+                    if bits.len() > 1 { ", all at once" } else { "" },
+                    pct_trim(self.target, 1)
+                )
+            }
+        }
     }
 
     /// The currency, with a leading space, or nothing.

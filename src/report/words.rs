@@ -227,7 +227,11 @@ fn measure_words(v: &View<'_>) -> String {
 /// The short findings.
 fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
     let mut items = Vec::new();
-    let target = pct_trim(v.target, 1);
+    let target = match v.model.ready {
+        None => pct_trim(v.target, 1),
+        Some(_) => v.target_words(),
+    };
+    let target_words = v.target_words();
     let cur = v.cur();
     match v.kind {
         Kind::Frontier => {
@@ -236,7 +240,7 @@ fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
                 t("The cheapest policy found, "),
                 c(first.labelled()),
                 t(format!(
-                    ", costs {}{cur} over the horizon ({}{cur} with the downtime penalty) and meets {target} availability in ",
+                    ", costs {}{cur} over the horizon ({}{cur} with the downtime penalty) and meets {target_words} in ",
                     money_short(first.cost.mean),
                     money_short(first.total())
                 )),
@@ -309,7 +313,7 @@ fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
             items.push(vec![
                 t("Policy "),
                 c(p.name()),
-                t(format!(" meets {target} availability in ")),
+                t(format!(" meets {target_words} in ")),
                 b(chance_pct(p.chance.value)),
                 t(format!(
                     " of simulated futures (95 % interval {} to {}); availability is between {} and {} in 80 % of them.",
@@ -776,7 +780,7 @@ fn cost_table(v: &View<'_>) -> Block {
     head.extend(chosen.iter().map(|p| p.labelled()));
     let comps: Vec<Vec<(&'static str, f64)>> = chosen
         .iter()
-        .map(|p| super::plots::components(p, v.measure.basis))
+        .map(|p| super::plots::components(v.model, p, v.measure.basis))
         .collect();
     let mut rows: Vec<Vec<String>> = Vec::new();
     if let Some(first) = comps.first() {
@@ -981,10 +985,16 @@ fn assumptions(v: &View<'_>) -> Vec<Block> {
             model.seed
         ))]),
     }
-    items.push(vec![t(format!(
-        "Target: at least {} fleet availability (up unit-hours over scheduled unit-hours in a trial). Chances are shares of trials, with Wilson 95 % intervals.",
-        pct_trim(v.target, 1)
-    ))]);
+    items.push(vec![t(match &model.ready {
+        None => format!(
+            "Target: at least {} fleet availability (up unit-hours over scheduled unit-hours in a trial). Chances are shares of trials, with Wilson 95 % intervals.",
+            pct_trim(v.target, 1)
+        ),
+        Some(_) => format!(
+            "Target: {} (a trial meets it when the share of its horizon with every site at its count is at least that). Chances are shares of trials, with Wilson 95 % intervals; the chances at availability levels read fleet availability (up unit-hours over scheduled unit-hours).",
+            v.target_in_full()
+        ),
+    })]);
     items.push(vec![t(format!("Cost measure: {}.", measure_words(v)))]);
     items.push(vec![t(format!(
         "Downtime penalty: {}{cur} per unit-hour down.",
@@ -1061,6 +1071,26 @@ fn files(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
             t(": the machine-readable result, the same as the command's --json output."),
         ],
     ];
+    if v.model.has_sites() {
+        items.push(vec![
+            Span::File("sites.csv".into()),
+            t(format!(": one row per site for {per}: its ready count, the chance it holds it, units up, stock-outs, waiting demands and lateral transfers, beside the mean-life plan's expected units up.")),
+        ]);
+        items.push(vec![
+            Span::File("units-up.csv".into()),
+            t(": the share of the horizon with exactly each count of units up, for the fleet (site empty) and for each site."),
+        ]);
+        items.push(vec![
+            Span::File("stores.csv".into()),
+            t(": the stock of each part type at each site and at the depot, beside the mean-life plan's spares on their way to that store."),
+        ]);
+    }
+    if v.model.has_rotables() {
+        items.push(vec![
+            Span::File("rotables.csv".into()),
+            t(": each rotable's repair loop: removals, repairs, condemnations, the number in repair (simulated and by the mean-life plan), the repair time, the turnaround and the wait for a channel."),
+        ]);
+    }
     for f in figures {
         items.push(vec![
             Span::File(f.file.clone()),
@@ -1106,10 +1136,10 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
             t(" Scenario "),
             c(&model.name),
             t(format!(
-                ": {} units over {} operating hours; target at least {} fleet availability; {}. This report shows {what}.",
+                ": {} units over {} operating hours; target {}; {}. This report shows {what}.",
                 model.units.len(),
                 num(model.horizon, 0),
-                pct_trim(v.target, 1),
+                v.target_in_full(),
                 if model.currency.is_empty() {
                     "costs in the scenario's money".to_string()
                 } else {
@@ -1142,6 +1172,7 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
     )]));
     doc.extend(fig("exceedance.svg"));
     doc.push(chance_table(v));
+    doc.extend(super::network::sections(v, figures));
     doc.push(Block::Heading(
         2,
         "Where the mean-life plan goes wrong".into(),

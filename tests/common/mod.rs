@@ -31,6 +31,23 @@ pub fn load(name: &str) -> Model {
     }
 }
 
+/// The text of the embedded demo as it stood before sites and rotables
+/// (`tests/data/demo-2026.toml`): one store, an availability target, a
+/// frontier the search covers.
+pub fn demo_2026_text() -> String {
+    std::fs::read_to_string(demo_2026_path()).expect("fixture")
+}
+
+/// The path of the 2026 demo fixture.
+pub fn demo_2026_path() -> String {
+    format!("{}/tests/data/demo-2026.toml", env!("CARGO_MANIFEST_DIR"))
+}
+
+/// The 2026 demo fixture, loaded.
+pub fn demo_2026() -> Model {
+    model(&demo_2026_text())
+}
+
 /// Parse scenario text, panicking with the error (tests only).
 pub fn model(text: &str) -> Model {
     match wearout::scenario::parse("test.toml", text) {

@@ -3,7 +3,12 @@
 use super::*;
 
 /// The cost components of a policy, in drawing order, with their names.
-pub fn components(p: &PolicyView<'_>, basis: CostBasis) -> Vec<(&'static str, f64)> {
+/// Repair appears with rotables, transport with a depot or lateral supply.
+pub fn components(
+    model: &crate::model::Model,
+    p: &PolicyView<'_>,
+    basis: CostBasis,
+) -> Vec<(&'static str, f64)> {
     let a = &p.summary.acc;
     let capital = ("initial stock capital", p.summary.initial_stock_capital);
     let downtime = ("downtime penalty", a.downtime_cost.mean());
@@ -13,6 +18,12 @@ pub fn components(p: &PolicyView<'_>, basis: CostBasis) -> Vec<(&'static str, f6
         ("unplanned labour", a.labour_unplanned.mean()),
         ("holding", a.holding.mean()),
     ];
+    if model.has_rotables() {
+        v.push(("repair", a.repair_planned.mean() + a.repair_failed.mean()));
+    }
+    if model.depot.is_some() || model.lateral.is_some() {
+        v.push(("transport", a.transport_cost.mean()));
+    }
     match basis {
         CostBasis::Spend => {
             v.push(capital);
@@ -33,6 +44,9 @@ fn component_colour(name: &str) -> RGBColor {
         "unplanned labour" => PALETTE[1],
         "holding" => PALETTE[4],
         "initial stock capital" => PALETTE[2],
+        // The Okabe-Ito palette's yellow, and the figures' soft grey.
+        "repair" => RGBColor(0xf0, 0xe4, 0x42),
+        "transport" => SOFT,
         _ => PALETTE[3],
     }
 }
@@ -42,9 +56,15 @@ pub fn costs(v: &View<'_>) -> Result<String, ReportError> {
     const FIG: &str = "costs.svg";
     let basis = v.measure.basis;
     let n = v.policies.len();
-    let height = 150 + 30 * n as u32;
-    let rows: Vec<Vec<(&'static str, f64)>> =
-        v.policies.iter().map(|p| components(p, basis)).collect();
+    // More than six components (repair, transport) take a second legend row.
+    let n_items = components(v.model, &v.policies[0], basis).len();
+    let legend_rows = if n_items > 6 { 2 } else { 1 };
+    let height = 150 + 30 * n as u32 + 22 * (legend_rows - 1);
+    let rows: Vec<Vec<(&'static str, f64)>> = v
+        .policies
+        .iter()
+        .map(|p| components(v.model, p, basis))
+        .collect();
     let max = rows
         .iter()
         .map(|r| r.iter().map(|c| c.1.max(0.0)).sum::<f64>())
@@ -61,7 +81,7 @@ pub fn costs(v: &View<'_>) -> Result<String, ReportError> {
             )
             .margin(16)
             .margin_right(30)
-            .margin_bottom(40)
+            .margin_bottom(40 + 22 * (legend_rows - 1))
             .x_label_area_size(44)
             .y_label_area_size(70)
             .build_cartesian_2d(0f64..x1, -0.5f64..(n as f64 - 0.5))
@@ -152,11 +172,17 @@ pub fn costs(v: &View<'_>) -> Result<String, ReportError> {
                 FIG,
             )?;
         }
-        let items: Vec<(String, Swatch)> = components(&v.policies[0], basis)
+        let items: Vec<(String, Swatch)> = components(v.model, &v.policies[0], basis)
             .iter()
             .map(|(name, _)| (name.to_string(), Swatch::Block(component_colour(name))))
             .collect();
-        legend_row(root, 86, height as i32 - 22, &items, FIG)?;
+        if legend_rows == 1 {
+            legend_row(root, 86, height as i32 - 22, &items, FIG)?;
+        } else {
+            let (top, bottom) = items.split_at(4);
+            legend_row(root, 86, height as i32 - 44, top, FIG)?;
+            legend_row(root, 86, height as i32 - 22, bottom, FIG)?;
+        }
         Ok(())
     })
 }

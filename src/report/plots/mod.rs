@@ -1,7 +1,7 @@
 //! The report's pictures, drawn as SVG with plotters: the frontier, the
 //! availability exceedance curves, the cost breakdown, the life of each
-//! part type, stock against lead-time demand, and the mean-life plan
-//! beside the simulated spread.
+//! part type, stock against lead-time demand, the mean-life plan beside
+//! the simulated spread, and (with sites) the units up at each site.
 //!
 //! Owns: the figures' layout, colours and wording: one file per figure,
 //! and here what they share (the drawing surface, colours, text, legends,
@@ -19,6 +19,7 @@ mod frontier;
 mod life;
 mod mean_life;
 mod stock;
+mod units_up;
 
 pub use costs::{components, costs};
 pub use exceedance::exceedance;
@@ -26,6 +27,7 @@ pub use frontier::frontier;
 pub use life::life;
 pub use mean_life::mean_life;
 pub use stock::stock;
+pub use units_up::units_up;
 
 use std::collections::HashSet;
 
