@@ -61,6 +61,14 @@ pub struct MeanLifePlan {
     pub meets_target: bool,
     /// Per part type.
     pub parts: Vec<PartPlan>,
+    /// With `[money]`: the running spend of a full year (a flat line: the
+    /// plan spends at one rate), capital apart.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub spend_per_year: Option<Money>,
+    /// With `[money]`: the present value of that flat running spend over
+    /// the horizon, capital apart.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub pv_spend: Option<Money>,
 }
 
 /// Compute the mean-life plan's figures of `policy`.
@@ -206,6 +214,7 @@ pub fn mean_life_plan(model: &Model, policy: &Policy) -> MeanLifePlan {
             .all(|(&up, &k)| up >= k as f64),
         None => availability >= model.target,
     };
+    let h = model.horizon;
     MeanLifePlan {
         availability,
         cost: spend + penalty,
@@ -214,5 +223,7 @@ pub fn mean_life_plan(model: &Model, policy: &Policy) -> MeanLifePlan {
         planned,
         meets_target,
         parts,
+        spend_per_year: model.money.as_ref().map(|m| spend / h * m.hours_per_year),
+        pv_spend: model.money.as_ref().map(|m| spend * m.flat_pv_factor(h)),
     }
 }

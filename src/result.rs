@@ -474,6 +474,7 @@ pub fn cost_measure_label(m: crate::model::CostMeasure) -> String {
     let basis = match m.basis {
         crate::model::CostBasis::Spend => "spend",
         crate::model::CostBasis::TotalWithPenalty => "total",
+        crate::model::CostBasis::PvSpend => "pv_spend",
     };
     match m.statistic {
         crate::model::CostStatistic::Mean => format!("{basis} (mean)"),

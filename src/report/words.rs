@@ -120,7 +120,7 @@ fn step(v: &View<'_>, lo: &PolicyView<'_>, hi: &PolicyView<'_>) -> Vec<Span> {
         Some((p, d)) if d > 0.0 => {
             let name = part_name(model, p);
             let cap = match basis {
-                CostBasis::Spend => {
+                CostBasis::Spend | CostBasis::PvSpend => {
                     (hi.policy.parts[p].stock.total() as f64
                         - lo.policy.parts[p].stock.total() as f64)
                         * model.parts[p].price
@@ -220,6 +220,9 @@ fn measure_words(v: &View<'_>) -> String {
         ),
         CostBasis::TotalWithPenalty => format!(
             "total cost ({stat} over trials): parts bought, planned and unplanned labour, holding and the downtime penalty; the initial stock's capital is reported apart"
+        ),
+        CostBasis::PvSpend => format!(
+            "present value of spend ({stat} over trials): parts bought, labour, repair, transport and holding, each discounted from when it falls due, and the initial stock's capital at time 0; the downtime penalty is left out"
         ),
     }
 }
@@ -598,6 +601,7 @@ fn mean_life_words(v: &View<'_>) -> Vec<Vec<Span>> {
         let what = match basis {
             CostBasis::Spend => "the mean spend",
             CostBasis::TotalWithPenalty => "the mean total cost",
+            CostBasis::PvSpend => "the mean present value of spend",
         };
         if let Some(s) = gap_words(clo, chi, n_pol, "%", what) {
             items.push(vec![t(s)]);
