@@ -22,6 +22,7 @@
 //! no longer writes (e.g. a figure) are removed, and nothing else ever is.
 
 mod doc;
+mod finance;
 mod html;
 mod plots;
 mod tables;
@@ -253,6 +254,14 @@ fn figures(v: &View<'_>) -> Result<Vec<doc::Figure>, ReportError> {
         "Mean cost over the horizon by component, and the initial stock's capital.".into(),
         "Stacked horizontal bars of cost components per policy.".into(),
     );
+    if let Some(svg) = plots::money_years(v)? {
+        add(
+            "money-years.svg",
+            svg,
+            "Running spend per year for the policies singled out: mean (line and dots) and the P10-P90 band of trials, the yearly budget (dashed black) and each policy's mean-life plan (dotted, flat).".into(),
+            "One line per policy of mean spend per year with a shaded band from P10 to P90, a horizontal budget line and flat lines for the mean-life plans.".into(),
+        );
+    }
     add(
         "life.svg",
         plots::life(v)?,
@@ -301,6 +310,9 @@ fn assemble(
     r.push("frontier.csv", tables::frontier_csv(v)?);
     r.push("policies.csv", tables::policies_csv(v)?);
     r.push("trials.csv", tables::trials_csv(model, v, progress)?);
+    if let Some(csv) = finance::money_csv(v) {
+        r.push("money.csv", csv);
+    }
     r.push("result.json", json);
     for f in figs {
         r.push(f.file, f.svg.into_bytes());

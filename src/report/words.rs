@@ -1062,6 +1062,7 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
     ));
     doc.extend(fig("costs.svg"));
     doc.push(cost_table(v));
+    doc.extend(super::finance::section(v, figures));
     doc.push(Block::Heading(2, "Part by part".into(), "parts".into()));
     doc.extend(fig("life.svg"));
     doc.extend(fig("stock.svg"));
