@@ -33,9 +33,10 @@ pub fn money_years(v: &View<'_>) -> Result<Option<String>, ReportError> {
             .chain(chosen.iter().filter_map(|p| p.plan.spend_per_year))
             .chain([0.0]),
     );
-    let (y0, y1) = pad(lo.min(0.0), hi, 0.06);
+    // Headroom above the data for the legend.
+    let (y0, y1) = pad(lo.min(0.0), hi + 0.45 * (hi - lo.min(0.0)), 0.04);
     let (x0, x1) = (0.5, years as f64 + 0.5);
-    draw(FIG, 560, |root| {
+    draw(FIG, 620, |root| {
         let mut chart = ChartBuilder::on(root)
             .caption(
                 "Running spend per year of operation",
@@ -108,18 +109,24 @@ pub fn money_years(v: &View<'_>) -> Result<Option<String>, ReportError> {
                 )
                 .map_err(pe(FIG))?;
             if let Some(flat) = p.plan.spend_per_year {
-                chart
+                let series = chart
                     .draw_series(DashedLineSeries::new(
                         vec![(x0, flat), (x1, flat)],
                         2,
                         5,
                         colour(k).stroke_width(2),
                     ))
-                    .map_err(pe(FIG))?
-                    .label(format!("{}: the mean-life plan's flat line", p.name()))
-                    .legend(move |(x, y)| {
-                        PathElement::new(vec![(x, y), (x + 22, y)], colour(k).stroke_width(1))
-                    });
+                    .map_err(pe(FIG))?;
+                if k == 0 {
+                    series
+                        .label("dotted, in each policy's colour: its mean-life plan (flat)")
+                        .legend(|(x, y)| {
+                            EmptyElement::at((x, y))
+                                + PathElement::new(vec![(0, 0), (5, 0)], SOFT.stroke_width(2))
+                                + PathElement::new(vec![(9, 0), (14, 0)], SOFT.stroke_width(2))
+                                + PathElement::new(vec![(18, 0), (22, 0)], SOFT.stroke_width(2))
+                        });
+                }
             }
         }
         if let Some(b) = settings.budget {
@@ -136,7 +143,7 @@ pub fn money_years(v: &View<'_>) -> Result<Option<String>, ReportError> {
         }
         chart
             .configure_series_labels()
-            .position(SeriesLabelPosition::LowerRight)
+            .position(SeriesLabelPosition::UpperLeft)
             .background_style(WHITE.mix(0.9))
             .border_style(GRID)
             .label_font((FONT, 12).into_font().color(&INK))
