@@ -252,6 +252,15 @@ struct Store {
     /// Time integral of spares on hand, up to `last`.
     area: f64,
     last: Hours,
+    /// With `[money]`: the discount factor at `last`; the integral of the
+    /// spares on hand times `-dD(t)` (`delta` times their discounted
+    /// spare-hours); the year `last` is in, its end (infinite in the last
+    /// year, and without money), and the area at its start.
+    disc_last: f64,
+    pv_area: f64,
+    year: u32,
+    year_end: Hours,
+    year_area0: f64,
     /// Time integral of the demands (at the depot: requests) waiting, kept
     /// as the sum of their leaving times minus their joining times (those
     /// still waiting leave at the horizon).
@@ -721,6 +730,11 @@ struct Run<'a, 'm, const NET: bool, const UP: bool> {
     horizon: Hours,
     out: TrialOutcome,
     check: bool,
+    /// With `[money]`: the last clock time a discount factor was computed
+    /// for, and that factor.
+    disc: (Hours, f64),
+    /// With `[money]` and a discount rate other than 0.
+    discounting: bool,
 }
 
 fn draw_initial_age(spec: &InitialAge, index_in_group: usize, ages: &mut Stream) -> Hours {
@@ -769,6 +783,14 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             s.requests.clear();
             s.area = 0.0;
             s.last = 0.0;
+            s.disc_last = 1.0;
+            s.pv_area = 0.0;
+            s.year = 0;
+            s.year_area0 = 0.0;
+            s.year_end = match &sim.money {
+                Some(c) if c.years > 1 => c.hours_per_year,
+                _ => f64::INFINITY,
+            };
             s.back_area = 0.0;
             s.pending.clear();
             s.beyond = 0;
@@ -887,6 +909,8 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             horizon: model.horizon,
             out,
             check,
+            disc: (0.0, 1.0),
+            discounting: sim.money.is_some_and(|c| c.delta != 0.0),
         };
         for u in 0..run.ws.units.len() {
             run.schedule_unit(u, 0.0);
@@ -1062,63 +1086,82 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
     }
 
     fn touch_store(&mut self, store: usize, now: Hours) {
-        let s = &mut self.ws.stores[store];
-        if self.sim.money.is_some() && s.on_hand > 0 && now > s.last {
-            let (from, n) = (s.last, s.on_hand);
-            self.shelf_books(store, from, now, n);
+        if self.sim.money.is_some() {
+            self.shelf_books(store, now);
         }
         let s = &mut self.ws.stores[store];
         s.area += s.on_hand as f64 * (now - s.last);
         s.last = now;
     }
 
-    /// With `[money]`: `n` spares on hand at `store` over `[from, to)`, split
-    /// across the years exactly and discounted continuously (MODEL.md,
-    /// "Money over time": holding accrues continuously).
+    /// With `[money]`: the store's books before its spares on hand change
+    /// at `to` (its area is not yet brought up to `to`). The spare-hours of
+    /// each year are the differences of the store's area at the year ends
+    /// (holding split across years exactly, with one comparison per touch
+    /// inside a year), and the discounted spare-hours add `n (D(last) -
+    /// D(to))`, divided by `delta` at the end (MODEL.md, "Money over time":
+    /// holding accrues continuously), with `D(t) = exp(-delta t)` shared
+    /// with the costs booked at the same instant. Kept out of line so
+    /// that a scenario without money pays one test per touch.
     #[inline(never)]
-    fn shelf_books(&mut self, store: usize, from: Hours, to: Hours, n: u32) {
+    fn shelf_books(&mut self, store: usize, to: Hours) {
+        if to >= self.ws.stores[store].year_end {
+            self.year_ends(store, to);
+        }
+        if self.discounting {
+            let d = self.discount_at(to);
+            let s = &mut self.ws.stores[store];
+            s.pv_area += f64::from(s.on_hand) * (s.disc_last - d);
+            s.disc_last = d;
+        }
+    }
+
+    /// The store's clock passes one or more year ends by `to`: each ended
+    /// year gets the spare-hours since its start.
+    #[inline(never)]
+    fn year_ends(&mut self, store: usize, to: Hours) {
         let Some(c) = self.sim.money else {
             return;
         };
         let np = self.out.parts.len();
         let ds = self.sim.depot_stores;
         let part = if store < ds { store } else { (store - ds) % np };
-        let n = f64::from(n);
-        let len = to - from;
-        // The integral of exp(-delta t) over [from, to): exp(-delta from)
-        // (1 - exp(-delta len)) / delta, with expm1 for short spans.
-        let pv = if c.delta == 0.0 {
-            len
-        } else {
-            c.discount(from) * -(-c.delta * len).exp_m1() / c.delta
-        };
-        self.ws.books.shelf_pv[part] += n * pv;
-        let (mut y, mut a) = (c.year(from), from);
-        loop {
-            let end = if y + 1 >= c.years {
-                to
+        let s = &mut self.ws.stores[store];
+        while to >= s.year_end {
+            let at_end = s.area + f64::from(s.on_hand) * (s.year_end - s.last);
+            self.ws.books.year_shelf[s.year as usize * np + part] += at_end - s.year_area0;
+            s.year_area0 = at_end;
+            s.year += 1;
+            s.year_end = if s.year as usize + 1 >= c.years {
+                f64::INFINITY
             } else {
-                ((y + 1) as f64 * c.hours_per_year).min(to)
+                (s.year + 1) as f64 * c.hours_per_year
             };
-            if end > a {
-                self.ws.books.year_shelf[y * np + part] += n * (end - a);
-            }
-            if end >= to {
-                break;
-            }
-            a = end;
-            y += 1;
         }
+    }
+
+    /// The discount factor at clock time `t` (with `[money]`), remembered
+    /// for the next call at the same instant.
+    #[inline(always)]
+    fn discount_at(&mut self, t: Hours) -> f64 {
+        let Some(c) = &self.sim.money else {
+            return 1.0;
+        };
+        if t != self.disc.0 {
+            self.disc = (t, c.discount(t));
+        }
+        self.disc.1
     }
 
     /// With `[money]`: `amount` spent on `part` at clock time `at` goes into
     /// its year and, discounted, into its present value.
     #[inline(always)]
     fn book(&mut self, part: usize, amount: f64, at: Hours) {
-        if let Some(c) = &self.sim.money {
+        if let Some(c) = self.sim.money {
             let np = self.out.parts.len();
             self.out.year_spend[c.year(at) * np + part] += amount;
-            self.out.parts[part].pv_spend += amount * c.discount(at);
+            let d = self.discount_at(at);
+            self.out.parts[part].pv_spend += amount * d;
         }
     }
 
@@ -1207,11 +1250,9 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             if t > now {
                 break;
             }
-            let s = &mut self.ws.stores[store];
-            s.pending.pop();
-            if self.sim.money.is_some() && s.on_hand > 0 && t > s.last {
-                let (from, n) = (s.last, s.on_hand);
-                self.shelf_books(store, from, t, n);
+            self.ws.stores[store].pending.pop();
+            if self.sim.money.is_some() {
+                self.shelf_books(store, t);
             }
             let s = &mut self.ws.stores[store];
             s.area += s.on_hand as f64 * (t - s.last);
@@ -1848,6 +1889,22 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             // none is awaited (an awaited one would have been an event).
             self.settle(store, h);
             self.touch_store(store, h);
+            if let Some(c) = self.sim.money {
+                // The last year's spare-hours, and the discounted ones.
+                let part = if store < ds {
+                    store
+                } else {
+                    (store - ds) % n_parts
+                };
+                let s = &self.ws.stores[store];
+                let books = &mut self.ws.books;
+                books.year_shelf[s.year as usize * n_parts + part] += s.area - s.year_area0;
+                books.shelf_pv[part] += if c.delta == 0.0 {
+                    s.area
+                } else {
+                    s.pv_area / c.delta
+                };
+            }
             let s = &self.ws.stores[store];
             // Demands still waiting leave at the horizon.
             let back = s.back_area + s.waiting() as f64 * h;

@@ -274,3 +274,36 @@ discount_rate = 0.05
         f.pv_spend.se
     );
 }
+
+#[test]
+fn the_frontier_searches_on_present_value() {
+    // `[search] cost = "pv_spend"`: the frontier's cost is the present value
+    // of spend, capital included (MODEL.md, "Money over time"). At 8 % a
+    // year over four years of 5 000 h it lies between the spend discounted
+    // from the horizon and the spend itself, for every policy reported, and
+    // it is the mean of the per-trial present values.
+    let text = scenario_text("b0").replacen("cost = \"spend\"", "cost = \"pv_spend\"", 1)
+        + "\n[money]\nhours_per_year = 5000\ndiscount_rate = 0.08\n";
+    let m = model(&text);
+    let config = wearout::frontier::FrontierConfig {
+        screen_trials: 150,
+        ..wearout::frontier::FrontierConfig::new(150, 300, m.target)
+    };
+    let r = wearout::frontier::search(&m, &config, &wearout::run::Quiet).expect("search runs");
+    assert!(!r.points.is_empty());
+    assert_eq!(r.cost.basis, wearout::model::CostBasis::PvSpend);
+    let d_end = 1.08f64.powf(-m.horizon / 5000.0);
+    for pt in &r.points {
+        let s = &pt.costed.summary;
+        let capital = s.initial_stock_capital;
+        let spend = s.acc.spend.mean() + capital;
+        let pv = pt.costed.cost.mean;
+        assert!(
+            pv < spend && pv > capital + (spend - capital) * d_end,
+            "{pv} vs {spend}"
+        );
+        let per_trial = s.trial_costs(wearout::model::CostBasis::PvSpend);
+        let mean = per_trial.iter().sum::<f64>() / per_trial.len() as f64;
+        assert!(close(mean, pv, 1e-12), "{mean} vs {pv}");
+    }
+}
