@@ -95,6 +95,14 @@ pub struct MeanLifePlan {
     /// Per site (empty without sites).
     #[serde(skip_serializing_if = "Vec::is_empty")]
     pub sites: Vec<SitePlan>,
+    /// With `[money]`: the running spend of a full year (a flat line: the
+    /// plan spends at one rate), capital apart.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub spend_per_year: Option<Money>,
+    /// With `[money]`: the present value of that flat running spend over
+    /// the horizon, capital apart.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub pv_spend: Option<Money>,
 }
 
 /// Compute the mean-life plan's figures of `policy`.
@@ -293,6 +301,7 @@ pub fn mean_life_plan(model: &Model, policy: &Policy) -> MeanLifePlan {
     } else {
         Vec::new()
     };
+    let h = model.horizon;
     MeanLifePlan {
         availability,
         cost: spend + penalty,
@@ -302,5 +311,7 @@ pub fn mean_life_plan(model: &Model, policy: &Policy) -> MeanLifePlan {
         meets_target,
         parts,
         sites,
+        spend_per_year: model.money.as_ref().map(|m| spend / h * m.hours_per_year),
+        pv_spend: model.money.as_ref().map(|m| spend * m.flat_pv_factor(h)),
     }
 }

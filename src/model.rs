@@ -474,6 +474,9 @@ pub enum CostBasis {
     Spend,
     /// Spend without capital plus the downtime penalty (MODEL.md's total).
     TotalWithPenalty,
+    /// Present value of spend at the scenario's discount rate, the initial
+    /// stock's capital counted in full at time 0 (needs `[money]`).
+    PvSpend,
 }
 
 /// The statistic of the cost taken across trials.
@@ -597,9 +600,97 @@ pub struct Model {
     /// `Parameters` stream, so every policy sees the same draws); when off
     /// every trial uses the point estimates.
     pub parameter_uncertainty: bool,
+    /// Money over time (`[money]`): years, discounting, budgets; `None`
+    /// when the scenario gives none (no yearly money figures then).
+    pub money: Option<MoneySettings>,
+}
+
+/// The year used to count stock-outs per year when the scenario gives no
+/// `hours_per_year`: a calendar year of round-the-clock operation, 365 x 24
+/// hours (a choice of ours, documented in docs/scenario-format.md).
+pub const DEFAULT_YEAR_HOURS: Hours = 8760.0;
+
+/// Money over time (MODEL.md, "Money over time"): the operating hours of a
+/// year (the simulation clock), the discount rate, and the yearly budgets
+/// of running spend.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MoneySettings {
+    /// Operating hours in a calendar year (> 0).
+    pub hours_per_year: Hours,
+    /// Discount rate per year as a fraction (0.06 for 6 %), above -1; 0 when
+    /// the scenario gives none.
+    pub discount_rate: f64,
+    /// Yearly budget of the fleet's running spend (0 or more), if any.
+    pub budget: Option<Money>,
+    /// Per part type (indexed by part id): its own yearly budget, if any.
+    pub part_budgets: Vec<Option<Money>>,
+}
+
+impl MoneySettings {
+    /// Number of years the horizon touches (the last may be partial), at
+    /// least 1.
+    pub fn years(&self, horizon: Hours) -> usize {
+        years_of(horizon, self.hours_per_year)
+    }
+
+    /// The share of a full year that year `y` (from 0) covers: 1 except for
+    /// a partial last year.
+    pub fn year_share(&self, y: usize, horizon: Hours) -> f64 {
+        year_share(y, horizon, self.hours_per_year)
+    }
+
+    /// The continuous discount rate per hour, `ln(1 + r) / hours_per_year`,
+    /// so that a cost at clock time `t` is worth `exp(-delta t)` of itself.
+    pub fn delta_per_hour(&self) -> f64 {
+        self.discount_rate.ln_1p() / self.hours_per_year
+    }
+
+    /// Present value of one unit of money spent evenly over `[0, horizon]`:
+    /// `(1 - exp(-delta H)) / (delta H)` (the continuous uniform series;
+    /// Park, Contemporary Engineering Economics, continuous compounding),
+    /// 1 at rate 0.
+    pub fn flat_pv_factor(&self, horizon: Hours) -> f64 {
+        let x = self.delta_per_hour() * horizon;
+        if x == 0.0 { 1.0 } else { -(-x).exp_m1() / x }
+    }
+}
+
+/// Number of years of `year` hours the horizon touches, at least 1.
+pub fn years_of(horizon: Hours, year: Hours) -> usize {
+    let n = (horizon / year).ceil();
+    if n.is_finite() && n >= 1.0 {
+        n.min(1e6) as usize
+    } else {
+        1
+    }
+}
+
+/// The share of a full year that year `y` (from 0) of a horizon covers.
+pub fn year_share(y: usize, horizon: Hours, year: Hours) -> f64 {
+    let start = y as f64 * year;
+    ((horizon - start) / year).clamp(0.0, 1.0)
 }
 
 impl Model {
+    /// The hours of a year for yearly figures: `[money] hours_per_year`, or
+    /// [`DEFAULT_YEAR_HOURS`].
+    pub fn year_hours(&self) -> Hours {
+        self.money
+            .as_ref()
+            .map_or(DEFAULT_YEAR_HOURS, |m| m.hours_per_year)
+    }
+
+    /// Number of whole years of [`Model::year_hours`] within the horizon
+    /// (0 when the horizon is shorter than a year).
+    pub fn whole_years(&self) -> u32 {
+        let n = (self.horizon / self.year_hours()).floor();
+        if n.is_finite() && n >= 0.0 {
+            n.min(1e6) as u32
+        } else {
+            0
+        }
+    }
+
     /// Part id by name.
     pub fn part_id(&self, name: &str) -> Option<PartId> {
         self.parts.iter().position(|p| p.name == name)

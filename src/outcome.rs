@@ -14,6 +14,10 @@ pub struct PartOutcome {
     pub planned: u32,
     /// Demands that found the store empty.
     pub stockouts: u32,
+    /// Demands for a spare at the sites' stores (failures and planned
+    /// replacements falling due; a planned demand that fails while it
+    /// waits is not counted again).
+    pub demands: u32,
     /// Resupply orders placed before the horizon.
     pub orders: u32,
     /// Unit-hours down charged to this part type.
@@ -54,6 +58,15 @@ pub struct PartOutcome {
     pub depot_backorder_hours: Hours,
     /// Spare-hours on hand at every store (the holding cost's base).
     pub shelf_hours: Hours,
+    /// Present value of this part type's running spend (parts, labour,
+    /// holding, repair, transport) at the scenario's discount rate, the
+    /// initial capital apart; 0 without `[money]`.
+    pub pv_spend: Money,
+    /// Whole years of the horizon (of [`Model::year_hours`]) in which at
+    /// least one demand found its shelf empty.
+    ///
+    /// [`Model::year_hours`]: crate::model::Model::year_hours
+    pub stockout_years: u32,
 }
 
 impl PartOutcome {
@@ -87,6 +100,7 @@ impl PartOutcome {
         match basis {
             CostBasis::Spend => self.spend() + capital,
             CostBasis::TotalWithPenalty => self.total(),
+            CostBasis::PvSpend => self.pv_spend + capital,
         }
     }
 }
@@ -133,6 +147,10 @@ pub struct TrialOutcome {
     pub units_up: Vec<Hours>,
     /// Per site, for scenarios that name sites (else empty).
     pub sites: Vec<SiteOutcome>,
+    /// Running spend per year and part type, year by year (index
+    /// `year * parts + part`), for scenarios with `[money]` (else empty).
+    /// The initial capital is apart.
+    pub year_spend: Vec<Money>,
 }
 
 impl TrialOutcome {
@@ -149,6 +167,7 @@ impl TrialOutcome {
             readiness: 0.0,
             units_up: Vec::new(),
             sites: Vec::new(),
+            year_spend: Vec::new(),
         }
     }
 
@@ -178,6 +197,29 @@ impl TrialOutcome {
         match basis {
             CostBasis::Spend => self.spend() + capital,
             CostBasis::TotalWithPenalty => self.total(),
+            CostBasis::PvSpend => self.pv_spend() + capital,
         }
+    }
+
+    /// Present value of the running spend, without the initial capital.
+    pub fn pv_spend(&self) -> Money {
+        self.sum(|p| p.pv_spend)
+    }
+
+    /// The running spend of year `y` (from 0), all part types (0 without
+    /// `[money]`).
+    pub fn spend_in_year(&self, y: usize) -> Money {
+        let n = self.parts.len();
+        self.year_spend
+            .get(y * n..(y + 1) * n)
+            .map_or(0.0, |s| s.iter().sum())
+    }
+
+    /// Number of years in [`TrialOutcome::year_spend`].
+    pub fn years(&self) -> usize {
+        self.year_spend
+            .len()
+            .checked_div(self.parts.len())
+            .unwrap_or(0)
     }
 }

@@ -162,6 +162,17 @@ pub struct PartJson {
     pub on_hand_mean: f64,
     /// The repair loop of a repairable part type; null for a consumable.
     pub pipeline: Option<PipelineJson>,
+    /// Demands for a spare at the sites' stores (failures and planned
+    /// replacements falling due).
+    pub demands: f64,
+    /// Fill rate: the share of demands served from the shelf at once
+    /// (pooled over trials); null without demands.
+    pub fill_rate: Option<f64>,
+    /// The chance of at least one stock-out in a year (of
+    /// `stockout_year_hours`): per trial the share of its whole years with
+    /// one, averaged over trials; null when the horizon holds no whole
+    /// year.
+    pub stockout_year_chance: Option<MeanSe>,
 }
 
 /// One part type's cost means.
@@ -225,6 +236,125 @@ pub struct EvaluateJson {
     pub down_hours: DownJson,
     pub mean_life_plan: MeanLifeJson,
     pub per_part: Vec<PartJson>,
+    /// The year of the per-part stock-out chance: `[money]
+    /// hours_per_year`, or 8 760 h.
+    pub stockout_year_hours: f64,
+    /// Money over time (scenarios with `[money]`; absent otherwise).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub money: Option<MoneyJson>,
+}
+
+/// One part type's running spend in one year.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct PartYearJson {
+    pub name: String,
+    pub mean: f64,
+    pub se: f64,
+    /// Its own budget for the year (a partial year's share), if any.
+    pub budget: Option<f64>,
+    /// Chance its spend stays within that budget, Wilson 95 %.
+    pub within_budget: Option<Chance>,
+}
+
+/// One year's running spend (capital apart) across trials.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct YearJson {
+    /// The year, from 1.
+    pub year: u32,
+    /// The share of a full year it covers (below 1 for a partial last year).
+    pub share: f64,
+    pub mean: f64,
+    pub se: f64,
+    pub p10: f64,
+    pub p50: f64,
+    pub p90: f64,
+    /// The fleet's budget for the year (a partial year's share), if any.
+    pub budget: Option<f64>,
+    /// Chance the year's running spend stays within it, Wilson 95 %.
+    pub within_budget: Option<Chance>,
+    pub per_part: Vec<PartYearJson>,
+}
+
+/// Money over time (MODEL.md, "Money over time") for one policy.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct MoneyJson {
+    pub hours_per_year: f64,
+    /// Per year, as a fraction (0.06 for 6 %).
+    pub discount_rate: f64,
+    pub yearly_budget: Option<f64>,
+    /// Year 0: the initial stock's capital, apart from running spend.
+    pub capital_year0: f64,
+    pub years: Vec<YearJson>,
+    /// Chance that every year stays within the fleet's budget, Wilson 95 %.
+    pub within_budget_every_year: Option<Chance>,
+    /// Per part type with its own budget: the same chance.
+    pub per_part_within_budget_every_year: BTreeMap<String, Chance>,
+    /// Present value of spend, capital at time 0 included: mean, se, P10,
+    /// P50, P90.
+    pub pv_spend: crate::summary::SpreadFigures,
+    /// The mean-life plan's flat line: its running spend in a full year,
+    /// and its present value with capital.
+    pub mean_life_plan_spend_per_year: Option<f64>,
+    pub mean_life_plan_pv_spend: Option<f64>,
+}
+
+impl MoneyJson {
+    /// Build from a summary of a scenario with `[money]` (else `None`).
+    pub fn new(model: &Model, s: &Summary, plan: &MeanLifePlan) -> Option<Self> {
+        let m = model.money.as_ref()?;
+        let f = s.money()?;
+        let names = |p: usize| model.parts[p].name.clone();
+        Some(MoneyJson {
+            hours_per_year: m.hours_per_year,
+            discount_rate: m.discount_rate,
+            yearly_budget: m.budget,
+            capital_year0: f.capital,
+            years: f
+                .years
+                .iter()
+                .map(|y| YearJson {
+                    year: y.year,
+                    share: y.share,
+                    mean: y.spend.mean,
+                    se: y.spend.se,
+                    p10: y.spend.p10,
+                    p50: y.spend.p50,
+                    p90: y.spend.p90,
+                    budget: y.budget,
+                    within_budget: y.within_budget,
+                    per_part: y
+                        .parts
+                        .iter()
+                        .enumerate()
+                        .map(|(p, q)| PartYearJson {
+                            name: names(p),
+                            mean: q.spend.mean,
+                            se: q.spend.se,
+                            budget: q.budget,
+                            within_budget: q.within_budget,
+                        })
+                        .collect(),
+                })
+                .collect(),
+            within_budget_every_year: f.within_every_year,
+            per_part_within_budget_every_year: f
+                .part_within_every_year
+                .iter()
+                .enumerate()
+                .filter_map(|(p, c)| c.map(|c| (names(p), c)))
+                .collect(),
+            pv_spend: f.pv_spend,
+            mean_life_plan_spend_per_year: plan.spend_per_year,
+            mean_life_plan_pv_spend: plan.pv_spend.map(|x| x + s.initial_stock_capital),
+        })
+    }
+}
+
+/// Per part type: the fill rate and the chance of a stock-out in a year.
+fn stores_figures(s: &Summary, p: usize) -> (Option<f64>, Option<MeanSe>) {
+    let m = &s.acc.per_part[p];
+    let chance = (s.acc.whole_years > 0).then(|| MeanSe::from(&m.stockout_year_share));
+    (m.fill_rate(), chance)
 }
 
 fn ms(m: &crate::summary::Moments) -> MeanSe {
@@ -320,7 +450,7 @@ impl EvaluateJson {
                 .zip(&a.per_part)
                 .zip(&policy.parts)
                 .enumerate()
-                .map(|(p, ((pt, m), pp))| PartJson {
+                .map(|(pid, ((pt, m), pp))| PartJson {
                     name: pt.name.clone(),
                     rule: pp.rule.kind().to_string(),
                     interval: pp.rule.interval(),
@@ -345,8 +475,11 @@ impl EvaluateJson {
                             0.0
                         },
                         channels: r.channels,
-                        mean_life_in_repair: in_repair(p).unwrap_or(0.0),
+                        mean_life_in_repair: in_repair(pid).unwrap_or(0.0),
                     }),
+                    demands: m.demands.mean(),
+                    fill_rate: stores_figures(s, pid).0,
+                    stockout_year_chance: stores_figures(s, pid).1,
                     failures: m.failures.mean(),
                     planned: m.planned.mean(),
                     stockouts: m.stockouts.mean(),
@@ -365,6 +498,8 @@ impl EvaluateJson {
                     },
                 })
                 .collect(),
+            stockout_year_hours: model.year_hours(),
+            money: MoneyJson::new(model, s, plan),
         }
     }
 }
@@ -477,6 +612,9 @@ pub struct FrontierPolicyJson {
     pub spend: f64,
     /// Against the previous row; null for the cheapest.
     pub versus_previous: Option<NoiseJson>,
+    /// Money over time (scenarios with `[money]`; absent otherwise).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub money: Option<MoneyJson>,
 }
 
 /// The result of `wearout frontier`.
@@ -823,6 +961,7 @@ pub fn cost_measure_label(m: crate::model::CostMeasure) -> String {
     let basis = match m.basis {
         crate::model::CostBasis::Spend => "spend",
         crate::model::CostBasis::TotalWithPenalty => "total",
+        crate::model::CostBasis::PvSpend => "pv_spend",
     };
     match m.statistic {
         crate::model::CostStatistic::Mean => format!("{basis} (mean)"),
@@ -874,6 +1013,11 @@ impl FrontierJson {
                         chance_diff: n.chance_diff,
                         cost_diff: n.cost_diff,
                     }),
+                    money: MoneyJson::new(
+                        model,
+                        &c.summary,
+                        &crate::mean_life::mean_life_plan(model, &c.policy),
+                    ),
                 }
             })
             .collect();

@@ -267,6 +267,15 @@ struct Store {
     /// Time integral of spares on hand, up to `last`.
     area: f64,
     last: Hours,
+    /// With `[money]`: the discount factor at `last`; the integral of the
+    /// spares on hand times `-dD(t)` (`delta` times their discounted
+    /// spare-hours); the year `last` is in, its end (infinite in the last
+    /// year, and without money), and the area at its start.
+    disc_last: f64,
+    pv_area: f64,
+    year: u32,
+    year_end: Hours,
+    year_area0: f64,
     /// Time integral of the demands (at the depot: requests) waiting, kept
     /// as the sum of their leaving times minus their joining times (those
     /// still waiting leave at the horizon).
@@ -383,6 +392,22 @@ pub struct Workspace {
     changes: Vec<Change>,
     /// The trial's drawn lives per part type (parameter uncertainty).
     trial_lives: Vec<Life>,
+    books: Books,
+}
+
+/// The yearly books of one trial: the last year each part type had a
+/// stock-out and, with `[money]`, the spares on hand per year and their
+/// discounted time integral (holding, split exactly across years).
+#[derive(Debug, Default)]
+struct Books {
+    /// Per part type: 1 + the last year with a stock-out (0: none yet).
+    stockout_year: Vec<u32>,
+    /// With money: spare-hours on hand per year and part type (index
+    /// `year * parts + part`).
+    year_shelf: Vec<f64>,
+    /// With money: per part type, the integral of the spares on hand times
+    /// `exp(-delta t)` over the horizon.
+    shelf_pv: Vec<f64>,
 }
 
 /// What the last trial run on a [`Workspace`] drew: the words taken from
@@ -441,6 +466,41 @@ pub struct Simulator<'m> {
     depot_stores: usize,
     /// Units at each site.
     site_units: Vec<u32>,
+    /// The hours of a year for the yearly stock-out count, and the whole
+    /// years in the horizon.
+    year_hours: Hours,
+    whole_years: u32,
+    /// With `[money]`: the years and the discount of the yearly books.
+    money: Option<Clock>,
+}
+
+/// The calendar of the money books (scenarios with `[money]`).
+#[derive(Debug, Clone, Copy)]
+struct Clock {
+    hours_per_year: Hours,
+    /// Years the horizon touches (the last may be partial).
+    years: usize,
+    /// Continuous discount per hour, `ln(1 + r) / hours_per_year`.
+    delta: f64,
+}
+
+impl Clock {
+    /// The year (from 0) holding clock time `t` (the last year also holds
+    /// the horizon itself).
+    #[inline(always)]
+    fn year(&self, t: Hours) -> usize {
+        ((t / self.hours_per_year) as usize).min(self.years - 1)
+    }
+
+    /// What one unit of money at clock time `t` is worth at time 0.
+    #[inline(always)]
+    fn discount(&self, t: Hours) -> f64 {
+        if self.delta == 0.0 {
+            1.0
+        } else {
+            (-self.delta * t).exp()
+        }
+    }
 }
 
 impl<'m> Simulator<'m> {
@@ -487,6 +547,13 @@ impl<'m> Simulator<'m> {
                 0
             },
             site_units: model.site_units().iter().map(|&n| n as u32).collect(),
+            year_hours: model.year_hours(),
+            whole_years: model.whole_years(),
+            money: model.money.as_ref().map(|m| Clock {
+                hours_per_year: m.hours_per_year,
+                years: m.years(model.horizon),
+                delta: m.delta_per_hour(),
+            }),
         }
     }
 
@@ -664,6 +731,7 @@ struct View<'a> {
     transport: &'a mut [Stream],
     lateral: &'a mut [Stream],
     changes: &'a mut Vec<Change>,
+    books: &'a mut Books,
 }
 
 /// One trial in progress. `NET`: the scenario has sites, a depot, lateral
@@ -677,6 +745,11 @@ struct Run<'a, 'm, const NET: bool, const UP: bool> {
     horizon: Hours,
     out: TrialOutcome,
     check: bool,
+    /// With `[money]`: the last clock time a discount factor was computed
+    /// for, and that factor.
+    disc: (Hours, f64),
+    /// With `[money]` and a discount rate other than 0.
+    discounting: bool,
 }
 
 fn draw_initial_age(spec: &InitialAge, index_in_group: usize, ages: &mut Stream) -> Hours {
@@ -725,6 +798,14 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             s.requests.clear();
             s.area = 0.0;
             s.last = 0.0;
+            s.disc_last = 1.0;
+            s.pv_area = 0.0;
+            s.year = 0;
+            s.year_area0 = 0.0;
+            s.year_end = match &sim.money {
+                Some(c) if c.years > 1 => c.hours_per_year,
+                _ => f64::INFINITY,
+            };
             s.back_area = 0.0;
             s.pending.clear();
             s.beyond = 0;
@@ -812,6 +893,15 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         if model.has_sites() {
             out.sites = vec![SiteOutcome::default(); n_sites];
         }
+        ws.books.stockout_year.clear();
+        ws.books.stockout_year.resize(n_parts, 0);
+        ws.books.year_shelf.clear();
+        ws.books.shelf_pv.clear();
+        if let Some(c) = &sim.money {
+            out.year_spend = vec![0.0; c.years * n_parts];
+            ws.books.year_shelf.resize(c.years * n_parts, 0.0);
+            ws.books.shelf_pv.resize(n_parts, 0.0);
+        }
         let ws = View {
             tourney: &mut ws.tourney,
             arrivals: &mut ws.arrivals,
@@ -825,6 +915,7 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             transport: &mut ws.transport,
             lateral: &mut ws.lateral,
             changes: &mut ws.changes,
+            books: &mut ws.books,
         };
         let mut run = Run {
             sim,
@@ -833,6 +924,8 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             horizon: model.horizon,
             out,
             check,
+            disc: (0.0, 1.0),
+            discounting: sim.money.is_some_and(|c| c.delta != 0.0),
         };
         for u in 0..run.ws.units.len() {
             run.schedule_unit(u, 0.0);
@@ -1001,9 +1094,83 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
     }
 
     fn touch_store(&mut self, store: usize, now: Hours) {
+        if self.sim.money.is_some() {
+            self.shelf_books(store, now);
+        }
         let s = &mut self.ws.stores[store];
         s.area += s.on_hand as f64 * (now - s.last);
         s.last = now;
+    }
+
+    /// With `[money]`: the store's books before its spares on hand change
+    /// at `to` (its area is not yet brought up to `to`). The spare-hours of
+    /// each year are the differences of the store's area at the year ends
+    /// (holding split across years exactly, with one comparison per touch
+    /// inside a year), and the discounted spare-hours add `n (D(last) -
+    /// D(to))`, divided by `delta` at the end (MODEL.md, "Money over time":
+    /// holding accrues continuously), with `D(t) = exp(-delta t)` shared
+    /// with the costs booked at the same instant. Kept out of line so
+    /// that a scenario without money pays one test per touch.
+    #[inline(never)]
+    fn shelf_books(&mut self, store: usize, to: Hours) {
+        if to >= self.ws.stores[store].year_end {
+            self.year_ends(store, to);
+        }
+        if self.discounting {
+            let d = self.discount_at(to);
+            let s = &mut self.ws.stores[store];
+            s.pv_area += f64::from(s.on_hand) * (s.disc_last - d);
+            s.disc_last = d;
+        }
+    }
+
+    /// The store's clock passes one or more year ends by `to`: each ended
+    /// year gets the spare-hours since its start.
+    #[inline(never)]
+    fn year_ends(&mut self, store: usize, to: Hours) {
+        let Some(c) = self.sim.money else {
+            return;
+        };
+        let np = self.out.parts.len();
+        let ds = self.sim.depot_stores;
+        let part = if store < ds { store } else { (store - ds) % np };
+        let s = &mut self.ws.stores[store];
+        while to >= s.year_end {
+            let at_end = s.area + f64::from(s.on_hand) * (s.year_end - s.last);
+            self.ws.books.year_shelf[s.year as usize * np + part] += at_end - s.year_area0;
+            s.year_area0 = at_end;
+            s.year += 1;
+            s.year_end = if s.year as usize + 1 >= c.years {
+                f64::INFINITY
+            } else {
+                (s.year + 1) as f64 * c.hours_per_year
+            };
+        }
+    }
+
+    /// The discount factor at clock time `t` (with `[money]`), remembered
+    /// for the next call at the same instant.
+    #[inline(always)]
+    fn discount_at(&mut self, t: Hours) -> f64 {
+        let Some(c) = &self.sim.money else {
+            return 1.0;
+        };
+        if t != self.disc.0 {
+            self.disc = (t, c.discount(t));
+        }
+        self.disc.1
+    }
+
+    /// With `[money]`: `amount` spent on `part` at clock time `at` goes into
+    /// its year and, discounted, into its present value.
+    #[inline(always)]
+    fn book(&mut self, part: usize, amount: f64, at: Hours) {
+        if let Some(c) = self.sim.money {
+            let np = self.out.parts.len();
+            self.out.year_spend[c.year(at) * np + part] += amount;
+            let d = self.discount_at(at);
+            self.out.parts[part].pv_spend += amount * d;
+        }
     }
 
     /// A unit goes from up to down or gains another reason to stay down.
@@ -1050,7 +1217,9 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         let lead = self.lead_time(part);
         let po = &mut self.out.parts[part];
         po.orders += 1;
-        po.parts_cost += self.sim.model.parts[part].price;
+        let price = self.sim.model.parts[part].price;
+        po.parts_cost += price;
+        self.book(part, price, now);
         self.send(store, now + lead);
     }
 
@@ -1085,12 +1254,15 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
     /// the shelf.
     #[inline]
     fn settle(&mut self, store: usize, now: Hours) {
-        let s = &mut self.ws.stores[store];
-        while let Some(&t) = s.pending.last() {
+        while let Some(&t) = self.ws.stores[store].pending.last() {
             if t > now {
                 break;
             }
-            s.pending.pop();
+            self.ws.stores[store].pending.pop();
+            if self.sim.money.is_some() {
+                self.shelf_books(store, t);
+            }
+            let s = &mut self.ws.stores[store];
             s.area += s.on_hand as f64 * (t - s.last);
             s.last = t;
             s.on_hand += 1;
@@ -1153,15 +1325,16 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         let pt = &self.sim.model.parts[part];
         self.set_status(idx, Status::Replacing { planned });
         let po = &mut self.out.parts[part];
-        let duration = if planned {
+        let (duration, labour) = if planned {
             po.planned += 1;
             po.labour_planned += pt.labour_planned;
-            pt.duration_planned
+            (pt.duration_planned, pt.labour_planned)
         } else {
             po.labour_unplanned += pt.labour_unplanned;
-            pt.duration_unplanned
+            (pt.duration_unplanned, pt.labour_unplanned)
         };
         self.ws.done_at[idx] = now + duration;
+        self.book(part, labour, now);
     }
 
     fn event_loop(&mut self) {
@@ -1385,6 +1558,7 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
     /// a place in the queue. A failure's unit is already held down by the
     /// caller.
     fn demand(&mut self, u: usize, j: usize, idx: usize, part: usize, planned: bool, now: Hours) {
+        self.out.parts[part].demands += 1;
         let store = self.store_of(u, part);
         // Arrivals up to this instant come first; the new order cannot be
         // among them.
@@ -1406,15 +1580,22 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             self.start_work(u, j, planned, now);
             return;
         }
-        self.stockout(u, part);
+        self.stockout(u, part, now);
         self.wait(u, j, idx, store, planned, now);
         self.schedule_unit(u, now);
     }
 
     /// Count a demand of unit `u` for `part` that found its shelf empty.
     #[inline(always)]
-    fn stockout(&mut self, u: usize, part: usize) {
+    fn stockout(&mut self, u: usize, part: usize, now: Hours) {
         self.out.parts[part].stockouts += 1;
+        // The whole years with a stock-out: the first of each year counts.
+        let y = (now / self.sim.year_hours) as u32;
+        let last = &mut self.ws.books.stockout_year[part];
+        if y < self.sim.whole_years && *last != y + 1 {
+            *last = y + 1;
+            self.out.parts[part].stockout_years += 1;
+        }
         if NET && let Some(site) = self.out.sites.get_mut(self.ws.units[u].site) {
             site.stockouts += 1;
         }
@@ -1469,7 +1650,7 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             self.start_work(u, j, planned, now);
             return;
         }
-        self.stockout(u, part);
+        self.stockout(u, part, now);
         if !planned
             && self.sim.lateral
             && let Some(giver) = self.giver(part, site, now)
@@ -1488,6 +1669,8 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             let po = &mut self.out.parts[part];
             po.laterals += 1;
             po.transport_cost += lateral.cost_per_transfer;
+            let cost = lateral.cost_per_transfer;
+            self.book(part, cost, now);
             if let Some(s) = self.out.sites.get_mut(site) {
                 s.laterals_taken += 1;
             }
@@ -1574,6 +1757,8 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         let po = &mut self.out.parts[part];
         po.shipments += 1;
         po.transport_cost += depot.cost_per_shipment;
+        let cost = depot.cost_per_shipment;
+        self.book(part, cost, now);
         let store = self.sim.depot_stores + site * self.sim.model.parts.len() + part;
         self.send(store, time);
     }
@@ -1621,11 +1806,15 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         po.repair_hours += done.min(h) - now;
         if start < h {
             po.repairs += 1;
-            if failed {
+            let cost = if failed {
                 po.repair_failed += repair.cost_failed;
+                repair.cost_failed
             } else {
                 po.repair_planned += repair.cost_planned;
-            }
+                repair.cost_planned
+            };
+            // MODEL.md: a repair is charged when it starts.
+            self.book(part, cost, start);
         }
         self.send(dest, done);
     }
@@ -1740,6 +1929,22 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
             // none is awaited (an awaited one would have been an event).
             self.settle(store, h);
             self.touch_store(store, h);
+            if let Some(c) = self.sim.money {
+                // The last year's spare-hours, and the discounted ones.
+                let part = if store < ds {
+                    store
+                } else {
+                    (store - ds) % n_parts
+                };
+                let s = &self.ws.stores[store];
+                let books = &mut self.ws.books;
+                books.year_shelf[s.year as usize * n_parts + part] += s.area - s.year_area0;
+                books.shelf_pv[part] += if c.delta == 0.0 {
+                    s.area
+                } else {
+                    s.pv_area / c.delta
+                };
+            }
             let s = &self.ws.stores[store];
             // Demands still waiting leave at the horizon.
             let back = s.back_area + s.waiting() as f64 * h;
@@ -1765,6 +1970,26 @@ impl<'a, 'm, const NET: bool, const UP: bool> Run<'a, 'm, NET, UP> {
         for (pt, po) in model.parts.iter().zip(self.out.parts.iter_mut()) {
             po.holding = po.shelf_hours * pt.holding_per_hour;
             po.downtime_cost = po.down_hours * model.downtime_penalty;
+        }
+        if self.sim.money.is_some() {
+            let books = &self.ws.books;
+            for (p, (pt, po)) in model
+                .parts
+                .iter()
+                .zip(self.out.parts.iter_mut())
+                .enumerate()
+            {
+                po.pv_spend += books.shelf_pv[p] * pt.holding_per_hour;
+            }
+            for (i, (spend, shelf)) in self
+                .out
+                .year_spend
+                .iter_mut()
+                .zip(&books.year_shelf)
+                .enumerate()
+            {
+                *spend += shelf * model.parts[i % n_parts].holding_per_hour;
+            }
         }
         let unit_hours = model.units.len() as f64 * h;
         // Up hours are the units' operating clocks, counted apart from the

@@ -145,9 +145,24 @@ pub struct PartMoments {
     pub backorder_hours: Moments,
     pub depot_backorder_hours: Moments,
     pub shelf_hours: Moments,
+    /// Demands at the sites' stores.
+    pub demands: Moments,
+    /// Present value of the running spend (with `[money]`).
+    pub pv_spend: Moments,
+    /// Per trial: the share of its whole years with at least one stock-out
+    /// (trials folded only when the horizon holds a whole year).
+    pub stockout_year_share: Moments,
 }
 
 impl PartMoments {
+    /// Fill rate: the share of demands served from the shelf at once,
+    /// pooled over trials (all demands met at once over all demands); `None`
+    /// without demands.
+    pub fn fill_rate(&self) -> Option<f64> {
+        let d = self.demands.mean();
+        (d > 0.0).then(|| 1.0 - self.stockouts.mean() / d)
+    }
+
     /// Mean turnaround of a part sent to repair (the wait for a channel
     /// included): all turnarounds over all parts sent, across trials.
     pub fn mean_turnaround(&self) -> f64 {
@@ -239,6 +254,117 @@ pub struct Accumulator {
     /// Per trial: readiness (scenarios with a ready-units target; else
     /// empty).
     pub trial_readiness: Vec<f64>,
+    /// Whole years of the horizon for the yearly stock-out share (0: the
+    /// horizon is shorter than a year, and no share is kept).
+    pub whole_years: u32,
+    /// Present value of the running spend (with `[money]`; else zeros).
+    pub pv_spend: Moments,
+    /// The yearly money figures (scenarios with `[money]`).
+    pub money: Option<YearBooks>,
+}
+
+/// Running figures of the money books across trials: the running spend per
+/// year (fleet and part type), the trials within the yearly budgets, each
+/// trial's spend per year (for percentiles) and present value.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct YearBooks {
+    /// Years the horizon touches (the last may be partial).
+    pub years: usize,
+    /// Per year: the share of a full year it covers.
+    pub shares: Vec<f64>,
+    /// The fleet's yearly budget, and each part type's.
+    pub budget: Option<Money>,
+    pub part_budgets: Vec<Option<Money>>,
+    /// Per year: the fleet's running spend.
+    pub spend: Vec<Moments>,
+    /// Per year and part type (index `year * parts + part`).
+    pub part_spend: Vec<Moments>,
+    /// Per trial and year (index `trial * years + year`), in trial order.
+    pub trial_spend: Vec<f64>,
+    /// Per trial: present value of the running spend (capital apart).
+    pub trial_pv: Vec<f64>,
+    /// Trials whose running spend stayed within the budget in every year,
+    /// and per year.
+    pub within_every_year: u64,
+    pub within_year: Vec<u64>,
+    /// Per part type with a budget: the same counts (index `year * parts +
+    /// part` for the years).
+    pub part_within_every_year: Vec<u64>,
+    pub part_within_year: Vec<u64>,
+}
+
+impl YearBooks {
+    fn for_model(model: &Model) -> Option<Self> {
+        let m = model.money.as_ref()?;
+        let years = m.years(model.horizon);
+        let np = model.parts.len();
+        Some(YearBooks {
+            years,
+            shares: (0..years).map(|y| m.year_share(y, model.horizon)).collect(),
+            budget: m.budget,
+            part_budgets: m.part_budgets.clone(),
+            spend: vec![Moments::default(); years],
+            part_spend: vec![Moments::default(); years * np],
+            within_year: vec![0; years],
+            part_within_every_year: vec![0; np],
+            part_within_year: vec![0; years * np],
+            ..Default::default()
+        })
+    }
+
+    /// The budget of year `y` (from 0): the yearly budget times the year's
+    /// share (a partial last year against its share).
+    pub fn budget_of_year(&self, budget: Money, y: usize) -> Money {
+        budget * self.shares.get(y).copied().unwrap_or(1.0)
+    }
+
+    fn push(&mut self, o: &TrialOutcome) {
+        let np = o.parts.len();
+        let mut all = true;
+        let mut part_all = vec![true; np];
+        for y in 0..self.years {
+            let row = o.year_spend.get(y * np..(y + 1) * np).unwrap_or(&[]);
+            let total: f64 = row.iter().sum();
+            self.spend[y].push(total);
+            self.trial_spend.push(total);
+            if let Some(b) = self.budget {
+                if total <= self.budget_of_year(b, y) {
+                    self.within_year[y] += 1;
+                } else {
+                    all = false;
+                }
+            }
+            for (p, &x) in row.iter().enumerate() {
+                self.part_spend[y * np + p].push(x);
+                if let Some(b) = self.part_budgets.get(p).copied().flatten() {
+                    if x <= self.budget_of_year(b, y) {
+                        self.part_within_year[y * np + p] += 1;
+                    } else {
+                        part_all[p] = false;
+                    }
+                }
+            }
+        }
+        if all && self.budget.is_some() {
+            self.within_every_year += 1;
+        }
+        for (p, ok) in part_all.into_iter().enumerate() {
+            if ok && self.part_budgets.get(p).copied().flatten().is_some() {
+                self.part_within_every_year[p] += 1;
+            }
+        }
+        self.trial_pv.push(o.pv_spend());
+    }
+
+    /// The running spend of year `y` in trial order.
+    pub fn year_trials(&self, y: usize) -> Vec<f64> {
+        self.trial_spend
+            .iter()
+            .skip(y)
+            .step_by(self.years.max(1))
+            .copied()
+            .collect()
+    }
 }
 
 impl Accumulator {
@@ -255,6 +381,8 @@ impl Accumulator {
     pub fn for_model(model: &Model) -> Self {
         Accumulator {
             ready: model.ready.is_some(),
+            whole_years: model.whole_years(),
+            money: YearBooks::for_model(model),
             ..Self::new(model.parts.len())
         }
     }
@@ -318,6 +446,16 @@ impl Accumulator {
             m.backorder_hours.push(p.backorder_hours);
             m.depot_backorder_hours.push(p.depot_backorder_hours);
             m.shelf_hours.push(p.shelf_hours);
+            m.demands.push(p.demands as f64);
+            m.pv_spend.push(p.pv_spend);
+            if self.whole_years > 0 {
+                m.stockout_year_share
+                    .push(f64::from(p.stockout_years) / f64::from(self.whole_years));
+            }
+        }
+        self.pv_spend.push(o.pv_spend());
+        if let Some(books) = &mut self.money {
+            books.push(o);
         }
         if self.ready {
             self.trial_readiness.push(o.readiness);
@@ -357,6 +495,68 @@ pub struct AvailabilityFigures {
     pub p50: f64,
     pub p90: f64,
     pub p95: f64,
+}
+
+/// Mean, standard error and the P10, P50 and P90 of a money figure.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct SpreadFigures {
+    pub mean: f64,
+    pub se: f64,
+    pub p10: f64,
+    pub p50: f64,
+    pub p90: f64,
+}
+
+impl From<AvailabilityFigures> for SpreadFigures {
+    fn from(f: AvailabilityFigures) -> Self {
+        SpreadFigures {
+            mean: f.mean,
+            se: f.se,
+            p10: f.p10,
+            p50: f.p50,
+            p90: f.p90,
+        }
+    }
+}
+
+/// One part type's running spend in one year.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct PartYearFigures {
+    pub spend: MeanSe,
+    /// Its budget for the year (a partial year's share), if it has one.
+    pub budget: Option<Money>,
+    /// Chance its spend stays within that budget (Wilson 95 %).
+    pub within_budget: Option<Chance>,
+}
+
+/// One year's running spend across trials.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct YearFigures {
+    /// The year, from 1.
+    pub year: u32,
+    /// The share of a full year it covers (below 1 for a partial last year).
+    pub share: f64,
+    pub spend: SpreadFigures,
+    /// The fleet's budget for the year (a partial year's share), if any.
+    pub budget: Option<Money>,
+    /// Chance the year's running spend stays within it (Wilson 95 %).
+    pub within_budget: Option<Chance>,
+    /// Per part type, in part order.
+    pub parts: Vec<PartYearFigures>,
+}
+
+/// The money figures of a policy (MODEL.md, "Money over time").
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct MoneyFigures {
+    pub years: Vec<YearFigures>,
+    /// Chance that every year stays within the fleet's budget (Wilson 95 %).
+    pub within_every_year: Option<Chance>,
+    /// Per part type: chance that every year stays within its own budget.
+    pub part_within_every_year: Vec<Option<Chance>>,
+    /// Present value of spend, the initial capital at time 0 included.
+    pub pv_spend: SpreadFigures,
+    /// The initial stock's capital (year 0), in the present value.
+    pub capital: Money,
 }
 
 /// A policy's results across a set of trials.
@@ -473,7 +673,63 @@ impl Summary {
                 .map(|s| s + self.initial_stock_capital)
                 .collect(),
             CostBasis::TotalWithPenalty => self.acc.trial_total.clone(),
+            CostBasis::PvSpend => match &self.acc.money {
+                Some(books) => books
+                    .trial_pv
+                    .iter()
+                    .map(|s| s + self.initial_stock_capital)
+                    .collect(),
+                // Only a scenario with [money] may ask for it; without, the
+                // present value at rate 0 is the spend.
+                None => self.trial_costs(CostBasis::Spend),
+            },
         }
+    }
+
+    /// The yearly money figures (scenarios with `[money]`).
+    pub fn money(&self) -> Option<MoneyFigures> {
+        let b = self.acc.money.as_ref()?;
+        let n = self.trials();
+        let np = self.acc.per_part.len();
+        let years = (0..b.years)
+            .map(|y| {
+                let f = figures(&b.spend[y], &b.year_trials(y));
+                YearFigures {
+                    year: y as u32 + 1,
+                    share: b.shares[y],
+                    spend: SpreadFigures::from(f),
+                    budget: b.budget.map(|x| b.budget_of_year(x, y)),
+                    within_budget: b.budget.map(|_| wilson(b.within_year[y], n)),
+                    parts: (0..np)
+                        .map(|p| {
+                            let m = &b.part_spend[y * np + p];
+                            PartYearFigures {
+                                spend: MeanSe::from(m),
+                                budget: b.part_budgets[p].map(|x| b.budget_of_year(x, y)),
+                                within_budget: b.part_budgets[p]
+                                    .map(|_| wilson(b.part_within_year[y * np + p], n)),
+                            }
+                        })
+                        .collect(),
+                }
+            })
+            .collect();
+        let capital = self.initial_stock_capital;
+        let pv: Vec<f64> = b.trial_pv.iter().map(|x| x + capital).collect();
+        let mut pv_m = Moments::default();
+        pv.iter().for_each(|&x| pv_m.push(x));
+        Some(MoneyFigures {
+            years,
+            within_every_year: b.budget.map(|_| wilson(b.within_every_year, n)),
+            part_within_every_year: b
+                .part_budgets
+                .iter()
+                .zip(&b.part_within_every_year)
+                .map(|(bud, &k)| bud.map(|_| wilson(k, n)))
+                .collect(),
+            pv_spend: SpreadFigures::from(figures(&pv_m, &pv)),
+            capital,
+        })
     }
 
     /// The cost measure: its value and standard error.

@@ -121,9 +121,8 @@ fn b2_reference_agrees_with_peer() {
     // Peer figures, B2 reference policy (MODEL.md, second part), 4 000
     // trials, seed 1, copied from /work/shared/peer-figures.md ("B2, bus
     // operator with three garages and a depot"). Ours: 20 000 trials of the
-    // scenario's own seed. The peer's money-over-time figures (years, the
-    // budget, present value) are not compared: that part of the model is
-    // not simulated yet.
+    // scenario's own seed, the money-over-time figures (years, the budget,
+    // present value) included.
     let m = load("b2");
     let p = m.policy("reference").expect("reference policy").clone();
     let n = 20_000u64;
@@ -239,4 +238,36 @@ fn b2_reference_agrees_with_peer() {
     let c = s.chance();
     let se = (c.value * (1.0 - c.value) / n as f64 + 0.968 * 0.032 / 4000.0).sqrt();
     assert!((c.value - 0.968).abs() <= 3.0 * se, "chance {c:?}");
+
+    // Money over time (MODEL.md, 4 000 h a year, 6 %, budget 750 000).
+    // Running spend per year, years 1-8 (year 8 is half a year); the peer
+    // gives no standard errors for them: taken as ours scaled to its 4 000
+    // trials.
+    let books = a.money.as_ref().expect("b2 carries [money]");
+    assert_eq!(books.years, 8);
+    for (y, theirs) in [
+        512_665.0, 650_340.0, 689_413.0, 680_028.0, 650_196.0, 668_105.0, 679_354.0, 336_214.0,
+    ]
+    .into_iter()
+    .enumerate()
+    {
+        agree_no_se(
+            &format!("running spend, year {}", y + 1),
+            &books.spend[y],
+            theirs,
+            scale,
+        );
+    }
+    // The chance that every year stays within 750 000 (year 8: 375 000):
+    // peer 0.3335 (Wilson 0.3191 to 0.3483); binomial standard errors.
+    let f = s.money().expect("money figures");
+    let c = f.within_every_year.expect("a budget");
+    let se = (c.value * (1.0 - c.value) / n as f64 + 0.3335 * 0.6665 / 4000.0).sqrt();
+    assert!((c.value - 0.3335).abs() <= 3.0 * se, "within budget {c:?}");
+    // Present value of spend at 6 %, capital included: 4 244 970 ± 2 001.
+    let mut pv = Moments::default();
+    for x in s.trial_costs(wearout::model::CostBasis::PvSpend) {
+        pv.push(x);
+    }
+    agree("present value of spend", &pv, 4_244_970.0, 2_001.0);
 }

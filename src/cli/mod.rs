@@ -25,6 +25,7 @@ mod interrupt;
 mod merge;
 mod progress;
 mod render;
+mod render_money;
 mod shard;
 
 use std::io::Write;

@@ -515,6 +515,8 @@ pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
         ]);
     }
     s.push_str(&table(&rows));
+    s.push_str(&super::render_money::stores(j));
+    s.push_str(&super::render_money::evaluate(model, j));
     cautioned(s)
 }
 
@@ -659,6 +661,7 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
             r.points.len(),
             st.seconds_validation
         ));
+        s.push_str(&super::render_money::frontier(model, j));
         return cautioned(s);
     }
     let how = if !j.exhaustive && (model.has_sites() || model.ready.is_some()) {
@@ -687,6 +690,7 @@ pub fn frontier(model: &Model, r: &FrontierResult, j: &FrontierJson) -> String {
         st.seconds_search,
         st.seconds_validation
     ));
+    s.push_str(&super::render_money::frontier(model, j));
     cautioned(s)
 }
 

@@ -22,6 +22,7 @@
 //! no longer writes (e.g. a figure) are removed, and nothing else ever is.
 
 mod doc;
+mod finance;
 mod html;
 mod network;
 mod plots;
@@ -262,6 +263,14 @@ fn figures(v: &View<'_>) -> Result<Vec<doc::Figure>, ReportError> {
             "One panel per site: bars of the share of the horizon at each count of units up, per policy, with the ready count marked by a dashed line.".into(),
         );
     }
+    if let Some(svg) = plots::money_years(v)? {
+        add(
+            "money-years.svg",
+            svg,
+            "Running spend per year for the policies singled out: mean (line and dots) and the P10-P90 band of trials, the yearly budget (dashed black) and each policy's mean-life plan (dotted, flat).".into(),
+            "One line per policy of mean spend per year with a shaded band from P10 to P90, a horizontal budget line and flat lines for the mean-life plans.".into(),
+        );
+    }
     add(
         "life.svg",
         plots::life(v)?,
@@ -317,6 +326,9 @@ fn assemble(
     }
     if model.has_rotables() {
         r.push("rotables.csv", tables::rotables_csv(v)?);
+    }
+    if let Some(csv) = finance::money_csv(v) {
+        r.push("money.csv", csv);
     }
     r.push("result.json", json);
     for f in figs {

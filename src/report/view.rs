@@ -69,6 +69,9 @@ impl PolicyView<'_> {
         match basis {
             CostBasis::Spend => self.plan.spend + self.summary.initial_stock_capital,
             CostBasis::TotalWithPenalty => self.plan.cost,
+            CostBasis::PvSpend => {
+                self.plan.pv_spend.unwrap_or(self.plan.spend) + self.summary.initial_stock_capital
+            }
         }
     }
 
@@ -84,6 +87,9 @@ impl PolicyView<'_> {
                     + self.policy.parts[p].stock.total() as f64 * model.parts[p].price
             }
             CostBasis::TotalWithPenalty => m.total.mean(),
+            CostBasis::PvSpend => {
+                m.pv_spend.mean() + self.policy.parts[p].stock.total() as f64 * model.parts[p].price
+            }
         }
     }
 

@@ -120,7 +120,7 @@ fn step(v: &View<'_>, lo: &PolicyView<'_>, hi: &PolicyView<'_>) -> Vec<Span> {
         Some((p, d)) if d > 0.0 => {
             let name = part_name(model, p);
             let cap = match basis {
-                CostBasis::Spend => {
+                CostBasis::Spend | CostBasis::PvSpend => {
                     (hi.policy.parts[p].stock.total() as f64
                         - lo.policy.parts[p].stock.total() as f64)
                         * model.parts[p].price
@@ -221,6 +221,9 @@ fn measure_words(v: &View<'_>) -> String {
         CostBasis::TotalWithPenalty => format!(
             "total cost ({stat} over trials): parts bought, planned and unplanned labour, holding and the downtime penalty; the initial stock's capital is reported apart"
         ),
+        CostBasis::PvSpend => format!(
+            "present value of spend ({stat} over trials): parts bought, labour, repair, transport and holding, each discounted from when it falls due, and the initial stock's capital at time 0; the downtime penalty is left out"
+        ),
     }
 }
 
@@ -302,6 +305,9 @@ fn in_short(v: &View<'_>) -> Vec<Vec<Span>> {
             let note = match v.measure.basis {
                 CostBasis::Spend => {
                     " Spend stays the cost measure: the penalty is a price put on down time, which the chance already measures."
+                }
+                CostBasis::PvSpend => {
+                    " The present value of spend stays the cost measure: the penalty is a price put on down time, which the chance already measures."
                 }
                 CostBasis::TotalWithPenalty => "",
             };
@@ -699,6 +705,7 @@ fn mean_life_words(v: &View<'_>) -> Vec<Vec<Span>> {
         let what = match basis {
             CostBasis::Spend => "the mean spend",
             CostBasis::TotalWithPenalty => "the mean total cost",
+            CostBasis::PvSpend => "the mean present value of spend",
         };
         if let Some(s) = gap_words(clo, chi, n_pol, "%", what) {
             items.push(vec![t(s)]);
@@ -1187,6 +1194,7 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
     ));
     doc.extend(fig("costs.svg"));
     doc.push(cost_table(v));
+    doc.extend(super::finance::section(v, figures));
     doc.push(Block::Heading(2, "Part by part".into(), "parts".into()));
     doc.extend(fig("life.svg"));
     doc.extend(fig("stock.svg"));

@@ -25,8 +25,8 @@ use crate::fit::{
     read_records_or_log, select_parts,
 };
 use crate::model::{
-    CostBasis, CostMeasure, CostStatistic, FleetGroup, InitialAge, Model, PartPolicy, PartSearch,
-    PartType, Policy, Position, Rule, SearchSpace, Site, UnitType,
+    CostBasis, CostMeasure, CostStatistic, FleetGroup, InitialAge, Model, MoneySettings,
+    PartPolicy, PartSearch, PartType, Policy, Position, Rule, SearchSpace, Site, UnitType,
 };
 use crate::uncertainty::LifeUncertainty;
 use tree::{Tbl, Text, Val, each};
@@ -204,6 +204,7 @@ const ROOT_KEYS: &[&str] = &[
     "depot",
     "lateral",
     "ready_units",
+    "money",
 ];
 
 fn dist_err(v: &Val<'_, '_>, e: DistError) -> ScenarioError {
@@ -973,20 +974,101 @@ fn read_part_search(
     })
 }
 
+/// `[money]`: the operating hours of a year, the discount rate and the
+/// yearly budgets of running spend (MODEL.md, "Money over time").
+fn read_money(
+    v: Val<'_, '_>,
+    parts: &[PartType],
+    horizon: Hours,
+) -> Result<MoneySettings, ScenarioError> {
+    let t = v.table()?;
+    let hours_per_year = t.need(
+        "hours_per_year",
+        "the operating hours of a calendar year (> 0), e.g. 4000",
+        |v| {
+            let x = v.number()?;
+            if x > 0.0 && x.is_finite() {
+                Ok(x)
+            } else {
+                Err(v.error(format!(
+                    "the operating hours of a year must be a finite number greater than 0 (got {x}); e.g. 4000 for a fleet run 4 000 hours a year"
+                )))
+            }
+        },
+    )?;
+    if horizon / hours_per_year > 1e6 {
+        return Err(t.error(format!(
+            "hours_per_year = {hours_per_year} makes the horizon of {horizon} h more than a million years; allowed: at least horizon_hours / 1 000 000"
+        )));
+    }
+    let discount_rate = t
+        .with("discount_rate", |v| {
+            let x = v.number()?;
+            if x > -1.0 && x.is_finite() {
+                Ok(x)
+            } else {
+                Err(v.error(format!(
+                    "a discount rate is a finite fraction per year above -1 (-100 %), e.g. 0.06 for 6 % (got {x})"
+                )))
+            }
+        })?
+        .unwrap_or(0.0);
+    let budget_value = |v: Val<'_, '_>| {
+        let x = v.number()?;
+        if x >= 0.0 && x.is_finite() {
+            Ok(x)
+        } else {
+            Err(v.error(format!(
+                "a yearly budget is a finite amount of 0 or more (got {x})"
+            )))
+        }
+    };
+    let budget = t.with("yearly_budget", budget_value)?;
+    let mut part_budgets = vec![None; parts.len()];
+    t.with("yearly_budget_by_part", |v| {
+        let b = v.table()?;
+        b.entries(|key, v| {
+            let pid = part_named(parts, key, &v, "yearly_budget_by_part")?;
+            part_budgets[pid] = Some(budget_value(v)?);
+            Ok(())
+        })?;
+        Ok(())
+    })?;
+    t.finish(&[
+        "hours_per_year",
+        "discount_rate",
+        "yearly_budget",
+        "yearly_budget_by_part",
+    ])?;
+    Ok(MoneySettings {
+        hours_per_year,
+        discount_rate,
+        budget,
+        part_budgets,
+    })
+}
+
 fn read_search(
     v: Val<'_, '_>,
     parts: &[PartType],
     layout: &network::Layout,
+    has_money: bool,
 ) -> Result<SearchSpace, ScenarioError> {
     let t = v.table()?;
     let basis = t
-        .with("cost", |v| v.one_of(&["spend", "total"]))?
-        .map(|s| {
-            if s == "spend" {
-                CostBasis::Spend
-            } else {
-                CostBasis::TotalWithPenalty
+        .with("cost", |v| {
+            let s = v.one_of(&["spend", "total", "pv_spend"])?;
+            if s == "pv_spend" && !has_money {
+                return Err(v.error(
+                    "cost = \"pv_spend\" needs a [money] table with hours_per_year (and a discount_rate); allowed without it: spend, total",
+                ));
             }
+            Ok(s)
+        })?
+        .map(|s| match s {
+            "spend" => CostBasis::Spend,
+            "pv_spend" => CostBasis::PvSpend,
+            _ => CostBasis::TotalWithPenalty,
         })
         .unwrap_or(CostBasis::Spend);
     let statistic = t
@@ -1106,7 +1188,10 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
     let lateral = network::read_lateral(root, &layout)?;
     let ready = network::read_ready(root, &layout, &groups)?;
     let policies = read_policies(root, &parts, &layout)?;
-    let search = root.with("search", |v| read_search(v, &parts, &layout))?;
+    let money = root.with("money", |v| read_money(v, &parts, sc.horizon))?;
+    let search = root.with("search", |v| {
+        read_search(v, &parts, &layout, money.is_some())
+    })?;
     root.finish(ROOT_KEYS)?;
 
     let units = Model::flatten_units(&unit_types, &groups);
@@ -1136,6 +1221,7 @@ fn read_model(root: &Tbl<'_, '_>, base: Option<&Path>) -> Result<Model, Scenario
         search,
         currency: sc.currency,
         parameter_uncertainty: sc.parameter_uncertainty,
+        money,
     };
     for (p, span) in &policies {
         if let Some(msg) = model.safety_violation(p) {

@@ -16,6 +16,8 @@ pub struct Codec {
     parts: Vec<[f64; 3]>,
     /// Per part type: holding cost per spare-hour.
     holding: Vec<f64>,
+    /// Years of the money books (0 without `[money]`).
+    years: usize,
 }
 
 const T_AVAIL_RAW: u8 = 1;
@@ -234,6 +236,7 @@ impl Codec {
                 .map(|p| [p.price, p.labour_planned, p.labour_unplanned])
                 .collect(),
             holding: model.parts.iter().map(|p| p.holding_per_hour).collect(),
+            years: model.money.as_ref().map_or(0, |m| m.years(model.horizon)),
         }
     }
 
@@ -247,6 +250,7 @@ impl Codec {
                 .map(|[a, b, c]| [bits(*a), bits(*b), bits(*c)])
                 .collect(),
             holding: self.holding.iter().map(|h| bits(*h)).collect(),
+            years: self.years as u64,
         }
     }
 
@@ -255,7 +259,7 @@ impl Codec {
         for [a, b, c] in &r.parts {
             parts.push([unbits(a)?, unbits(b)?, unbits(c)?]);
         }
-        if r.holding.len() != parts.len() {
+        if r.holding.len() != parts.len() || r.years > 1_000_000 {
             return None;
         }
         Some(Codec {
@@ -263,6 +267,7 @@ impl Codec {
             penalty: unbits(&r.penalty)?,
             parts,
             holding: r.holding.iter().map(|h| unbits(h)).collect::<Option<_>>()?,
+            years: r.years as usize,
         })
     }
 
@@ -397,6 +402,50 @@ impl Codec {
                 put_hours_by_count(out, &site.units_up);
             }
         }
+        self.encode_books(o, out);
+    }
+
+    /// The yearly books that end a record (format 3).
+    fn encode_books(&self, o: &TrialOutcome, out: &mut Vec<u8>) {
+        for p in &o.parts {
+            put_varint(out, u64::from(p.demands));
+            put_varint(out, u64::from(p.stockout_years));
+        }
+        if self.years == 0 {
+            return;
+        }
+        assert_eq!(
+            o.year_spend.len(),
+            self.years * self.parts.len(),
+            "one yearly spend per year and part type"
+        );
+        let pv: Vec<f64> = o.parts.iter().map(|p| p.pv_spend).collect();
+        for chunk in pv.chunks(8).chain(o.year_spend.chunks(8)) {
+            put_floats(out, chunk);
+        }
+    }
+
+    /// Read the yearly books into `o` (its part types already read).
+    fn decode_books<R: Read>(&self, r: &mut Bytes<R>, o: &mut TrialOutcome) -> std::io::Result<()> {
+        for p in &mut o.parts {
+            p.demands = r.count()?;
+            p.stockout_years = r.count()?;
+        }
+        if self.years == 0 {
+            return Ok(());
+        }
+        let mut pv = vec![0.0; o.parts.len()];
+        for chunk in pv.chunks_mut(8) {
+            r.floats(chunk)?;
+        }
+        for (p, x) in o.parts.iter_mut().zip(pv) {
+            p.pv_spend = x;
+        }
+        o.year_spend = vec![0.0; self.years * self.parts.len()];
+        for chunk in o.year_spend.chunks_mut(8) {
+            r.floats(chunk)?;
+        }
+        Ok(())
     }
 
     pub(super) fn decode<R: Read>(&self, r: &mut Bytes<R>) -> std::io::Result<TrialOutcome> {
@@ -517,6 +566,7 @@ impl Codec {
                 backorder_hours,
                 depot_backorder_hours,
                 shelf_hours,
+                ..PartOutcome::default()
             });
         }
         let units_up = if tag & T_UNITS_UP != 0 {
@@ -550,7 +600,7 @@ impl Codec {
                 });
             }
         }
-        Ok(TrialOutcome {
+        let mut o = TrialOutcome {
             availability: avail_raw.unwrap_or_else(|| availability_of(up_hours, self.unit_hours)),
             up_hours,
             down_waiting,
@@ -561,7 +611,10 @@ impl Codec {
             readiness,
             units_up,
             sites,
-        })
+            year_spend: Vec::new(),
+        };
+        self.decode_books(r, &mut o)?;
+        Ok(o)
     }
 
     /// Decode one record from `bytes` (for tests and tools); returns the
@@ -643,8 +696,11 @@ mod tests {
             penalty: 0.3,
             parts: vec![[0.1, 7.0, 3.3], [1e300, 0.0, f64::MIN_POSITIVE]],
             holding: vec![0.25, 3.0],
+            years: 5,
         };
         let mut o = TrialOutcome::zeroed(2);
+        // Ten yearly figures: more than one group of eight, zeros among them.
+        o.year_spend = vec![1.5, 0.0, 2.25, -0.0, 1e9, 3.0, 0.0, 7.0, 0.1, 4.0];
         o.up_hours = 2900.123;
         o.availability = availability_of(o.up_hours, 3000.0);
         o.down_waiting = 0.5;
@@ -663,6 +719,9 @@ mod tests {
             shelf_hours: 4.0 / 3.0,
             holding: 4.0 / 3.0 * 0.25,
             backorder_hours: 2.5,
+            demands: 6,
+            stockout_years: 2,
+            pv_spend: 19.75,
             ..PartOutcome::default()
         };
         // A part whose figures do not come from the simulator's arithmetic:

@@ -154,6 +154,10 @@ pub struct CodecRecord {
     pub parts: Vec<[String; 3]>,
     /// Per part type: holding cost per spare-hour.
     pub holding: Vec<String>,
+    /// Years of the money books per record (0: the scenario has no
+    /// `[money]`, and records carry none).
+    #[serde(default)]
+    pub years: u64,
 }
 
 /// Everything a shard says about the run it is a share of.

@@ -16,10 +16,10 @@
 //! framing: writing a shard, opening one and reading its records back),
 //! `merge` (the checks that shards make one run, and their fold).
 //!
-//! # Format (version 2)
+//! # Format (version 3)
 //!
 //! ```text
-//! wearout-shard 2\n                       magic line
+//! wearout-shard 3\n                       magic line
 //! {"format":"wearout-shard",...}\n        header: one line of JSON (ShardHeader)
 //! records                                 trial-major: for each trial of first..end,
 //!                                         for each policy, one encoded TrialOutcome
@@ -36,6 +36,13 @@
 //! same arithmetic from their counts. Each rebuilt figure is checked against the real one when
 //! written; where they differ (never seen, but cheap to guard) the raw value
 //! is stored and a flag says so.
+//!
+//! Since version 3 a record ends with the yearly books: per part type its
+//! demands and its whole years with a stock-out (varints), and with
+//! `[money]` (the header's `codec.years` above 0) per part type the
+//! present value of its running spend, then the running spend per year and
+//! part type (year by year), eight numbers at a time as a byte of which are
+//! not zero followed by those.
 
 mod codec;
 mod file;
@@ -52,7 +59,7 @@ pub use spec::ShardSpec;
 /// The first word of every shard file.
 pub const MAGIC: &str = "wearout-shard";
 /// The shard format this code writes and reads.
-pub const FORMAT_VERSION: u32 = 2;
+pub const FORMAT_VERSION: u32 = 3;
 /// The version of wearout that writes shards (the crate version).
 pub const TOOL_VERSION: &str = env!("CARGO_PKG_VERSION");
 /// Trailer bytes: magic, record count, seconds, SHA-256.

@@ -25,7 +25,7 @@ pub fn components(
         v.push(("transport", a.transport_cost.mean()));
     }
     match basis {
-        CostBasis::Spend => {
+        CostBasis::Spend | CostBasis::PvSpend => {
             v.push(capital);
             v.push(downtime);
         }
@@ -95,6 +95,7 @@ pub fn costs(v: &View<'_>) -> Result<String, ReportError> {
                 match basis {
                     CostBasis::Spend => "spend",
                     CostBasis::TotalWithPenalty => "total",
+                    CostBasis::PvSpend => "spend (not discounted)",
                 }
             ))
             .x_label_formatter(&|x| money_short(*x))
@@ -147,13 +148,15 @@ pub fn costs(v: &View<'_>) -> Result<String, ReportError> {
             let chosen = v.chosen.contains(&i);
             row_label(root, p.name(), (lx, ly), chosen, FIG)?;
             let measure_mean = match basis {
-                CostBasis::Spend => p.summary.acc.spend.mean() + p.summary.initial_stock_capital,
+                CostBasis::Spend | CostBasis::PvSpend => {
+                    p.summary.acc.spend.mean() + p.summary.initial_stock_capital
+                }
                 CostBasis::TotalWithPenalty => p.summary.acc.total.mean(),
             };
             let (ex, ey) = chart.backend_coord(&(x, y));
             let outside = row.last().map_or(0.0, |c| c.1);
             let label = match basis {
-                CostBasis::Spend => format!(
+                CostBasis::Spend | CostBasis::PvSpend => format!(
                     "spend {} + penalty {}",
                     money_short(measure_mean),
                     money_short(outside)

@@ -56,6 +56,7 @@ pub fn mean_life(v: &View<'_>) -> Result<String, ReportError> {
     let basis_word = match basis {
         CostBasis::Spend => "Spend",
         CostBasis::TotalWithPenalty => "Total cost",
+        CostBasis::PvSpend => "Present value of spend",
     };
     draw(FIG, height, |root| {
         let inner = titled(root, "The mean-life plan beside the simulated futures", FIG)?;

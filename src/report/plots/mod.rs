@@ -18,6 +18,7 @@ mod exceedance;
 mod frontier;
 mod life;
 mod mean_life;
+mod money;
 mod stock;
 mod units_up;
 
@@ -26,6 +27,7 @@ pub use exceedance::exceedance;
 pub use frontier::frontier;
 pub use life::life;
 pub use mean_life::mean_life;
+pub use money::money_years;
 pub use stock::stock;
 pub use units_up::units_up;
 
