@@ -834,8 +834,9 @@ mod tests {
     /// name the same policy).
     #[test]
     fn policy_code_follows_content_only() {
+        // The demo as it stood when codes were introduced (kept as a fixture).
         let load = |text: &str| crate::scenario::parse("demo.toml", text).unwrap();
-        let demo = include_str!("../scenarios/demo.toml");
+        let demo = include_str!("../tests/data/demo-2026.toml");
         let m = load(demo);
         let current = m.policy("current").unwrap();
         let code = current.code(&m);
