@@ -204,6 +204,10 @@ pub struct EvaluateJson {
     pub down_hours: DownJson,
     pub mean_life_plan: MeanLifeJson,
     pub per_part: Vec<PartJson>,
+    /// Legal but suspicious inputs ([`Model::warnings`]); left out when
+    /// there are none.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
 }
 
 fn ms(m: &crate::summary::Moments) -> MeanSe {
@@ -333,6 +337,7 @@ impl EvaluateJson {
                     },
                 })
                 .collect(),
+            warnings: model.warnings(),
         }
     }
 }
@@ -448,7 +453,8 @@ pub struct FrontierJson {
     pub policies: Vec<FrontierPolicyJson>,
     /// Policies simulated in full on the search trials.
     pub evaluated: usize,
-    pub space_size: f64,
+    /// Policies in the search space (a whole number).
+    pub space_size: u128,
     pub search_trials: u64,
     pub validate_trials: u64,
     /// First validation trial index (search trials start at 0).
@@ -467,6 +473,10 @@ pub struct FrontierJson {
     pub seconds_search: f64,
     pub seconds_validation: f64,
     pub exhaustive: bool,
+    /// Legal but suspicious inputs ([`Model::warnings`]); left out when
+    /// there are none.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
 }
 
 /// A short label of a cost measure: `spend (mean)`.
@@ -531,7 +541,7 @@ impl FrontierJson {
             scenario: model.name.clone(),
             policies,
             evaluated: r.stats.evaluated,
-            space_size: r.space_size as f64,
+            space_size: r.space_size,
             search_trials: r.search_trials,
             validate_trials: r.validate_trials,
             validate_first_trial: crate::recost::VALIDATION_OFFSET,
@@ -549,6 +559,7 @@ impl FrontierJson {
             seconds_search: r.stats.seconds_search,
             seconds_validation: r.stats.seconds_validation,
             exhaustive,
+            warnings: model.warnings(),
         }
     }
 }

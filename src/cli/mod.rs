@@ -214,6 +214,7 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), CliError> {
     match cli.command {
         Command::Check { file } => {
             let loaded = load_or_demo(file.as_deref())?;
+            warn(&loaded.model);
             write!(out, "{}", render::check(&loaded))?;
             Ok(())
         }
@@ -329,6 +330,7 @@ struct Prepared {
 fn prepare(file: Option<&Path>, opts: &RunOpts) -> Result<Prepared, CliError> {
     let mut loaded = load_or_demo(file)?;
     opts.apply(&mut loaded.model);
+    warn(&loaded.model);
     let target = match opts.target {
         None => loaded.model.target,
         Some(x) if x > 0.0 && x <= 1.0 => x,
@@ -339,6 +341,15 @@ fn prepare(file: Option<&Path>, opts: &RunOpts) -> Result<Prepared, CliError> {
         }
     };
     Ok(Prepared { loaded, target })
+}
+
+/// Print the model's warnings (legal but suspicious values) on stderr,
+/// one `warning:` line each; the run goes ahead.
+fn warn(model: &Model) {
+    let mut err = std::io::stderr().lock();
+    for w in model.warnings() {
+        let _ = writeln!(err, "warning: {w}");
+    }
 }
 
 /// A finished result to show.

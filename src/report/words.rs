@@ -893,8 +893,10 @@ fn assumptions(v: &View<'_>) -> Vec<Block> {
         "Downtime penalty: {}{cur} per unit-hour down.",
         num(model.downtime_penalty, 2).trim_end_matches(".00")
     ))]);
-    items.push(vec![t(if model.parameter_uncertainty {
+    items.push(vec![t(if model.draws_life_parameters() {
         "Life parameters: each trial draws its own from the fits' sampling distributions (parts whose lives come from records).".to_string()
+    } else if model.parameter_uncertainty {
+        "Life parameters: fixed at the scenario's values in every trial; parameter uncertainty was asked for, but no part type's life is fitted to records, so there was nothing to draw.".to_string()
     } else {
         "Life parameters: fixed at the scenario's values in every trial.".to_string()
     })]);
@@ -902,9 +904,10 @@ fn assumptions(v: &View<'_>) -> Vec<Block> {
         let mut s = vec![
             c(&part.name),
             t(format!(
-                ": life {} (shape {}, mean {}); lead time {}; price {}{cur}",
+                ": life {} ({} {}, mean {}); lead time {}; price {}{cur}",
                 part.life.family(),
-                trim(part.life.shape_figure(), 2),
+                part.life.shape_named().0,
+                trim(part.life.shape_named().1, 2),
                 hours(part.life.mean()),
                 lead_time_words(&part.lead_time),
                 money(part.price)
@@ -1022,6 +1025,18 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
         ]),
         Block::Boxed("In short".into(), vec![Block::Bullets(in_short(v))]),
     ];
+    let warnings = model.warnings();
+    if !warnings.is_empty() {
+        doc.push(Block::Boxed(
+            "Inputs to check".into(),
+            vec![
+                Block::Para(vec![t(
+                    "These values are allowed but unusual; the figures below rest on them as given.",
+                )]),
+                Block::Bullets(warnings.into_iter().map(|w| vec![t(w)]).collect()),
+            ],
+        ));
+    }
     if v.kind == Kind::Frontier {
         doc.extend(levels(v));
         doc.push(Block::Heading(
