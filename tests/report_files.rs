@@ -105,7 +105,7 @@ fn result_json_is_the_json_output() {
         let mut c = common::wearout();
         c.args(args);
         if let Some(d) = report {
-            c.arg("--report").arg(d);
+            c.arg("--report-dir").arg(d);
         }
         let out = c.output().expect("wearout runs");
         assert!(

@@ -21,7 +21,7 @@ pub struct EvaluateArgs<'a> {
     /// The policy's name (default: the scenario's first).
     pub policy: Option<&'a str>,
     pub trials: Option<u64>,
-    /// `--report [DIR]`.
+    /// `--report` (`Some(None)`: the default folder) or `--report-dir DIR`.
     pub report: Option<Option<&'a Path>>,
 }
 
