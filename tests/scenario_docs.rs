@@ -234,7 +234,7 @@ fn every_key_of_the_shipped_scenarios_is_documented() {
 /// "allowed here" list of the error for an unknown field.
 #[test]
 fn every_scenario_field_the_reader_accepts_has_a_row() {
-    let text = "[scenario]\nname = \"x\"\nno_such_field = 1\n";
+    let text = "[scenario]\nname = \"x\"\nhorizon_hours = 100\ndowntime_penalty_per_hour = 1\ntarget_availability = 0.9\nno_such_field = 1\n";
     let err = match wearout::scenario::parse("probe", text) {
         Ok(_) => panic!("an unknown [scenario] field was accepted"),
         Err(e) => e.to_string(),
