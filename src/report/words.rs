@@ -463,7 +463,7 @@ fn levels(v: &View<'_>) -> Vec<Block> {
     if !steps.is_empty() {
         out.push(Block::Heading(
             3,
-            "What each step up costs".into(),
+            "Paying for a higher chance, policy by policy".into(),
             "steps".into(),
         ));
         out.push(Block::Bullets(steps));
