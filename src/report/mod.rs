@@ -26,6 +26,7 @@
 
 mod doc;
 mod html;
+mod live;
 mod plots;
 mod tables;
 mod view;
@@ -354,9 +355,15 @@ fn assemble(
     };
     let generator = format!("wearout {}", env!("CARGO_PKG_VERSION"));
     let mut r = Report::default();
+    let sets: Vec<String> = v
+        .policies
+        .iter()
+        .map(|p| words::settings(model, p))
+        .collect();
+    let live = live::panel(v, &sets);
     r.push(
         "index.html",
-        html::page(&title, &blocks, &generator).into_bytes(),
+        html::page(&title, &blocks, &generator, &live).into_bytes(),
     );
     let mut md = doc::to_markdown(&blocks);
     md.push_str(&format!(

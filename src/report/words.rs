@@ -191,7 +191,7 @@ fn is_next(v: &View<'_>, a: &PolicyView<'_>, b: &PolicyView<'_>) -> bool {
 }
 
 /// A policy's settings in short: `traction motor run to failure, S1; ...`.
-fn settings(model: &Model, p: &PolicyView<'_>) -> String {
+pub(super) fn settings(model: &Model, p: &PolicyView<'_>) -> String {
     p.policy
         .parts
         .iter()
