@@ -28,9 +28,15 @@ document.addEventListener("DOMContentLoaded", function () {
     var h = Z * Math.sqrt(p * (1 - p) / n + Z * Z / (4 * n * n)) / d;
     return { value: p, lo: s === 0 ? 0 : Math.max(c - h, 0), hi: s >= n ? 1 : Math.min(c + h, 1) };
   }
+  // As the command line writes a chance: rounded to a tenth of a point
+  // (halves away from zero), then to a whole point with halves to even
+  // (Rust's formatting), except near 0 and 100.
   function chancePct(x) {
     var p = Math.round(1000 * x) / 10;
-    return ((p > 0 && p < 1) || (p > 99 && p < 100) ? p.toFixed(1) : p.toFixed(0)) + NB + "%";
+    if ((p > 0 && p < 1) || (p > 99 && p < 100)) return p.toFixed(1) + NB + "%";
+    var r = Math.floor(p);
+    if (p - r > 0.5 || (p - r === 0.5 && r % 2 === 1)) r += 1;
+    return r + NB + "%";
   }
   function withInterval(c) {
     return chancePct(c.value) + " [" + chancePct(c.lo) + " to " + chancePct(c.hi) + "]";
@@ -52,13 +58,17 @@ document.addEventListener("DOMContentLoaded", function () {
     if (a >= 1e3) return sign + (a / 1e3).toFixed(1) + NB + "k";
     return sign + a.toFixed(0);
   }
-  function tableAfter(id) {
+  // The first table under the heading `id` whose second column's head
+  // starts with `second`.
+  function tableAfter(id, second) {
     var h = document.getElementById(id);
     for (var el = h && h.nextElementSibling; el; el = el.nextElementSibling) {
       if (el.tagName === "H2") return null;
-      if (el.tagName === "TABLE") return el;
-      var t = el.querySelector && el.querySelector("table");
-      if (t) return t;
+      var ts = el.tagName === "TABLE" ? [el] : Array.prototype.slice.call(el.querySelectorAll ? el.querySelectorAll("table") : []);
+      for (var i = 0; i < ts.length; i++) {
+        var head = ts[i].tHead && ts[i].tHead.rows[0].cells[1];
+        if (head && head.textContent.trim().indexOf(second) === 0) return ts[i];
+      }
     }
     return null;
   }
@@ -67,8 +77,8 @@ document.addEventListener("DOMContentLoaded", function () {
   var input = document.getElementById("wo-target");
   var says = document.getElementById("wo-says");
   var first = Math.round(D.target * GRID);
-  var levelsTable = tableAfter("levels");
-  var policiesTable = tableAfter("policies");
+  var levelsTable = tableAfter("levels", "policy");
+  var policiesTable = tableAfter("policies", "chance");
   var figure = document.getElementById("wo-frontier");
   var shown = []; // the chances last shown, for the checks
 
