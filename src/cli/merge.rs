@@ -29,7 +29,6 @@ pub struct MergeArgs<'a> {
 /// Run `wearout merge`.
 pub fn run(args: &MergeArgs<'_>, out: &mut dyn Write) -> Result<(), CliError> {
     let m = merged(args)?;
-    super::warn(&m.model);
     match m.header.kind {
         RunKind::Evaluate => {
             let Some(summary) = m.summaries.first() else {

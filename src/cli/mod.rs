@@ -386,7 +386,6 @@ struct Prepared {
 fn prepare(file: Option<&Path>, opts: &RunOpts) -> Result<Prepared, CliError> {
     let mut loaded = load_or_demo(file)?;
     opts.apply(&mut loaded.model);
-    warn(&loaded.model);
     let target = match opts.target {
         None => loaded.model.target,
         Some(x) if x > 0.0 && x <= 1.0 => x,
@@ -400,7 +399,9 @@ fn prepare(file: Option<&Path>, opts: &RunOpts) -> Result<Prepared, CliError> {
 }
 
 /// Print the model's warnings (legal but suspicious values) on stderr,
-/// one `warning:` line each; the run goes ahead.
+/// one `warning:` line each; the run goes ahead. Runs print them once the
+/// run's own checks have passed (in `guard`), so a refused run shows only
+/// its error.
 fn warn(model: &Model) {
     let mut err = std::io::stderr().lock();
     for w in model.warnings() {

@@ -89,7 +89,7 @@ pub fn panel(v: &View<'_>, sets: &[String]) -> String {
     format!(
         "<section id=\"wo-live\" class=\"box\" hidden aria-label=\"Another target\">\n\
 <h2>Another target?</h2>\n\
-<p>This report was written for a target of {target:.2}\u{a0}%. Choose another and the frontier figure, the cheapest policy for each chance level and every policy's chance below are recounted on the same trials.</p>\n\
+<p>This report was written for a target of {target:.2}\u{a0}%. Choose another and {} recounted on the same trials.</p>\n\
 <p><label for=\"wo-target\">Target, %: </label><input id=\"wo-target\" type=\"number\" min=\"0.01\" max=\"100\" step=\"0.01\" value=\"{target:.2}\"> \
 <input id=\"wo-target-range\" type=\"range\" min=\"50\" max=\"100\" step=\"0.01\" value=\"{target}\" aria-label=\"Target, %\"> \
 <button id=\"wo-reset\" type=\"button\">Back to {target:.2}\u{a0}%</button></p>\n\
@@ -97,6 +97,11 @@ pub fn panel(v: &View<'_>, sets: &[String]) -> String {
 </section>\n\
 <script type=\"application/json\" id=\"wo-data\">{}</script>\n\
 <script>\n{SCRIPT}</script>\n",
+        match v.kind {
+            Kind::Frontier =>
+                "the frontier figure, the cheapest policy for each chance level and every policy's chance below are",
+            Kind::Evaluate => "the policy's chance below is",
+        },
         data(v, sets)
     )
 }
