@@ -5,7 +5,7 @@
 # with its networking features off.
 #
 # Usage: scripts/check-report.sh [REPORT_DIR]
-#   REPORT_DIR  a folder written by `wearout ... --report`; without it, a
+#   REPORT_DIR  a folder written by `wearout ... --report-dir`; without it, a
 #               small fresh report of the embedded demo is written first to
 #               target/report-check/demo (200 search, 400 validation trials).
 # The screenshot goes to target/report-check/<folder name>.png (window
@@ -26,7 +26,7 @@ if [ $# -ge 1 ]; then
 else
     dir="target/report-check/demo"
     cargo run --release --quiet -- frontier --trials 200 --validate-trials 400 \
-        --report "$dir" >/dev/null
+        --report-dir "$dir" >/dev/null
 fi
 index="$dir/index.html"
 if [ ! -f "$index" ]; then

@@ -301,10 +301,17 @@ impl Life {
     /// A shape figure for summaries: Weibull or gamma shape, 1 for the
     /// exponential, and `sigma` for the lognormal.
     pub fn shape_figure(&self) -> f64 {
+        self.shape_named().1
+    }
+
+    /// The figure of [`Life::shape_figure`] with its own name: `sigma`
+    /// for the lognormal (the standard deviation of ln life, not a shape
+    /// parameter), `shape` for the others.
+    pub fn shape_named(&self) -> (&'static str, f64) {
         match *self {
-            Life::Weibull { shape, .. } | Life::Gamma { shape, .. } => shape,
-            Life::Lognormal { sigma, .. } => sigma,
-            Life::Exponential { .. } => 1.0,
+            Life::Weibull { shape, .. } | Life::Gamma { shape, .. } => ("shape", shape),
+            Life::Lognormal { sigma, .. } => ("sigma", sigma),
+            Life::Exponential { .. } => ("shape", 1.0),
         }
     }
 

@@ -47,9 +47,34 @@ pub struct PartType {
     /// (`life` is then its point estimate); `None` for a life given as
     /// parameters. Drawn per trial when [`Model::parameter_uncertainty`] is on.
     pub life_uncertainty: Option<LifeUncertainty>,
+    /// Where a life fitted to records came from (file, failures,
+    /// suspensions, the family and how it was chosen); `None` for a life
+    /// given as parameters.
+    pub life_source: Option<LifeSource>,
     /// The repair loop of a repairable part type (a rotable); `None` for a
     /// consumable part, scrapped at removal.
     pub repair: Option<Repair>,
+}
+
+/// Where a part type's fitted life came from, for `check` and the
+/// warnings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LifeSource {
+    /// The records file as the scenario names it.
+    pub file: String,
+    /// The part's name in the records.
+    pub records_part: String,
+    /// Failures (exact, in an interval or left-censored) in the fit.
+    pub failures: usize,
+    /// Suspensions (parts removed or still running unfailed).
+    pub suspensions: usize,
+    /// The family fitted, e.g. `weibull`.
+    pub family: String,
+    /// How the family was chosen, e.g. "asked for", "lowest AIC".
+    pub how: String,
+    /// A caution about the fit: why the lowest-AIC family was passed over,
+    /// or why the chosen fit's standard errors are not to be trusted.
+    pub caution: Option<String>,
 }
 
 impl PartType {
@@ -689,6 +714,84 @@ impl Model {
         } else {
             0
         }
+    }
+
+    /// Whether trials draw their own life parameters: the switch is on and
+    /// at least one part type's life is fitted to records (only those have
+    /// a sampling distribution to draw from).
+    pub fn draws_life_parameters(&self) -> bool {
+        self.parameter_uncertainty && self.parts.iter().any(|p| p.life_uncertainty.is_some())
+    }
+
+    /// Values that are legal but suspicious, one sentence each, for a
+    /// `warning:` line (the run goes ahead): a repair or lead time longer
+    /// than the part type's mean life, a lognormal sigma above 3, a mean
+    /// life shorter than a replacement takes or under 10 hours, a fitted
+    /// life's caution (a family passed over, untrusted standard errors),
+    /// and parameter uncertainty asked for with nothing fitted to draw.
+    /// The thresholds are common practice, not from a published source.
+    pub fn warnings(&self) -> Vec<String> {
+        let mut out = Vec::new();
+        let h = |x: f64| {
+            if x >= 100.0 {
+                format!("{x:.0} h")
+            } else {
+                format!("{} h", (x * 100.0).round() / 100.0)
+            }
+        };
+        for p in &self.parts {
+            let mean = p.life.mean();
+            let who = format!("part type `{}`", p.name);
+            if let Some(r) = &p.repair
+                && r.time.mean() > mean
+            {
+                out.push(format!(
+                    "{who}: its repair takes {} on average, longer than its mean life of {}; check the repair time and the life",
+                    h(r.time.mean()),
+                    h(mean)
+                ));
+            }
+            if p.lead_time.mean() > mean {
+                out.push(format!(
+                    "{who}: its lead time is {} on average, longer than its mean life of {}; check the lead time and the life",
+                    h(p.lead_time.mean()),
+                    h(mean)
+                ));
+            }
+            if let Life::Lognormal { sigma, .. } = p.life
+                && sigma > 3.0
+            {
+                out.push(format!(
+                    "{who}: lognormal sigma {sigma} is above 3, so one life in a hundred is over {:.0} times the median; check that sigma is the standard deviation of ln(hours), not of hours",
+                    (2.326_347_874 * sigma).exp()
+                ));
+            }
+            let longest = p.duration_planned.max(p.duration_unplanned);
+            if mean < longest {
+                out.push(format!(
+                    "{who}: its mean life of {} is shorter than a replacement takes ({}); check the life's units (operating hours) and the durations",
+                    h(mean),
+                    h(longest)
+                ));
+            }
+            if mean < 10.0 {
+                out.push(format!(
+                    "{who}: its mean life is {}, under 10 hours; check the life's parameters and their units (operating hours)",
+                    h(mean)
+                ));
+            }
+            if let Some(src) = &p.life_source
+                && let Some(c) = &src.caution
+            {
+                out.push(format!("{who}: life fitted to {}: {c}", src.file));
+            }
+        }
+        if self.parameter_uncertainty && !self.draws_life_parameters() {
+            out.push(
+                "parameter uncertainty is on, but no part type's life is fitted to records, so every trial uses the scenario's life parameters".to_string(),
+            );
+        }
+        out
     }
 
     /// Part id by name.

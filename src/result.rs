@@ -242,6 +242,10 @@ pub struct EvaluateJson {
     /// Money over time (scenarios with `[money]`; absent otherwise).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub money: Option<MoneyJson>,
+    /// Legal but suspicious inputs ([`Model::warnings`]); left out when
+    /// there are none.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
 }
 
 /// One part type's running spend in one year.
@@ -500,6 +504,7 @@ impl EvaluateJson {
                 .collect(),
             stockout_year_hours: model.year_hours(),
             money: MoneyJson::new(model, s, plan),
+            warnings: model.warnings(),
         }
     }
 }
@@ -624,7 +629,8 @@ pub struct FrontierJson {
     pub policies: Vec<FrontierPolicyJson>,
     /// Policies simulated in full on the search trials.
     pub evaluated: usize,
-    pub space_size: f64,
+    /// Policies in the search space (a whole number).
+    pub space_size: u128,
     pub search_trials: u64,
     pub validate_trials: u64,
     /// First validation trial index (search trials start at 0).
@@ -654,6 +660,10 @@ pub struct FrontierJson {
     /// The frontier policy with the least mean total with the downtime
     /// penalty (without capital); null for an empty frontier.
     pub cheapest_on_total: Option<CheapestOnTotalJson>,
+    /// Legal but suspicious inputs ([`Model::warnings`]); left out when
+    /// there are none.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
 }
 
 /// The re-costing's count and its reasons.
@@ -1143,7 +1153,7 @@ impl FrontierJson {
             scenario: model.name.clone(),
             policies,
             evaluated: r.stats.evaluated,
-            space_size: r.space_size as f64,
+            space_size: r.space_size,
             search_trials: r.search_trials,
             validate_trials: r.validate_trials,
             validate_first_trial: crate::recost::VALIDATION_OFFSET,
@@ -1161,6 +1171,7 @@ impl FrontierJson {
             seconds_search: r.stats.seconds_search,
             seconds_validation: r.stats.seconds_validation,
             exhaustive,
+            warnings: model.warnings(),
         }
     }
 }

@@ -110,10 +110,21 @@ pub fn wilson(successes: u64, n: u64) -> Chance {
     let denom = 1.0 + z * z / n_f;
     let centre = (p + z * z / (2.0 * n_f)) / denom;
     let half = z * (p * (1.0 - p) / n_f + z * z / (4.0 * n_f * n_f)).sqrt() / denom;
+    // At 0 (or n) successes the lower (upper) bound is exactly 0 (1); the
+    // subtraction leaves a rounding remainder (e.g. 1.08e-19), so the
+    // bound is set, not computed.
     Chance {
         value: p,
-        lo: (centre - half).max(0.0),
-        hi: (centre + half).min(1.0),
+        lo: if successes == 0 {
+            0.0
+        } else {
+            (centre - half).max(0.0)
+        },
+        hi: if successes >= n {
+            1.0
+        } else {
+            (centre + half).min(1.0)
+        },
     }
 }
 
@@ -778,6 +789,13 @@ mod tests {
         // 0 of 10: 0 to 0.2775 (same table).
         let c = wilson(0, 10);
         assert!(c.lo == 0.0 && (c.hi - 0.2775).abs() < 5e-5, "{c:?}");
+        // The bounds at the ends are exactly 0 and 1 (the interval's
+        // definition: at p = 0 the lower root of the score equation is 0),
+        // not a rounding remainder, for every n.
+        for n in [1, 7, 400, 10_000, 123_457] {
+            assert_eq!(wilson(0, n).lo, 0.0, "n = {n}");
+            assert_eq!(wilson(n, n).hi, 1.0, "n = {n}");
+        }
     }
 
     #[test]

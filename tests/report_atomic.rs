@@ -2,8 +2,10 @@
 //! that cannot be written, something in the way of a file) leaves the
 //! previous report byte for byte as it was, with no temporary files; a
 //! later report removes only the files an earlier report wrote; and the
-//! command line writes reports where `--report` says (the scenario's
-//! default folder when no folder is given). Agreement checks with the
+//! command line writes reports where `--report-dir` says (the default
+//! folder with `--report`, one for evaluations and one for the frontier),
+//! only into a new or empty folder or an earlier report, and never takes a
+//! scenario file for the folder. Agreement checks with the
 //! crate's own earlier output; no outside figures are involved.
 
 mod common;
@@ -131,8 +133,11 @@ fn the_command_line_writes_where_report_says() {
         "{}",
         String::from_utf8_lossy(&out.stderr)
     );
-    let default = dir.join("reports").join("demo");
+    // An evaluation's default folder names the policy, apart from the
+    // frontier's reports/demo/.
+    let default = dir.join("reports").join("demo-evaluate-current");
     assert!(default.join("index.html").is_file());
+    assert!(!dir.join("reports").join("demo").exists());
     // stdout is still exactly the JSON, and result.json holds the same bytes.
     let _: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json on stdout");
     assert_eq!(
@@ -151,7 +156,7 @@ fn the_command_line_writes_where_report_says() {
             "100",
             "--validate-trials",
             "100",
-            "--report",
+            "--report-dir",
         ])
         .arg(&there)
         .output()
@@ -176,10 +181,117 @@ fn the_command_line_writes_where_report_says() {
     let blocker = dir.join("a-file");
     std::fs::write(&blocker, "x").expect("file");
     let out = wearout()
-        .args(["evaluate", "--trials", "50", "--report"])
+        .args(["evaluate", "--trials", "50", "--report-dir"])
         .arg(blocker.join("sub"))
         .output()
         .expect("runs");
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("a-file"));
+}
+
+/// `--report` takes no folder after a space, so the scenario file after it
+/// is the scenario (`evaluate --report water.toml` does what was meant);
+/// `--report=DIR` is still read as a folder; a folder after `--report` is
+/// refused with a message naming `--report-dir`.
+#[test]
+fn report_never_swallows_the_scenario_file() {
+    let dir = temp_dir("report-swallow");
+    let water = dir.join("water.toml");
+    std::fs::copy(common::scenario_path("b0"), &water).expect("copy b0");
+    let out = wearout()
+        .args(["evaluate", "--trials", "50", "--json", "--report"])
+        .arg(&water)
+        .current_dir(&dir)
+        .output()
+        .expect("runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let j: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let name = j["scenario"].as_str().expect("scenario name").to_string();
+    assert_ne!(name, "demo", "the scenario file was not the one run");
+    let policy = j["policy"].as_str().expect("policy").to_string();
+    let default = dir
+        .join("reports")
+        .join(format!("{name}-evaluate-{policy}"));
+    assert!(
+        default.join("index.html").is_file(),
+        "{}",
+        default.display()
+    );
+
+    // The older spelling with an equals sign still names the folder.
+    let eq = dir.join("with-equals");
+    let out = wearout()
+        .args(["evaluate", "--trials", "50"])
+        .arg(&water)
+        .arg(format!("--report={}", eq.display()))
+        .output()
+        .expect("runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(eq.join("index.html").is_file());
+
+    // A folder where the scenario should be: exit 2, and the words say
+    // what to write instead; nothing is run or written.
+    let folder = dir.join("out");
+    std::fs::create_dir_all(&folder).expect("mkdir");
+    let out = wearout()
+        .args(["evaluate", "--trials", "50", "--report"])
+        .arg(&folder)
+        .output()
+        .expect("runs");
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("is a folder") && err.contains("--report-dir"),
+        "{err}"
+    );
+    assert!(std::fs::read_dir(&folder).expect("list").next().is_none());
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// A folder of someone's own files (no manifest) is refused before the run,
+/// exit 2, with every file as it was; an empty folder and an earlier
+/// report's folder are written.
+#[test]
+fn a_folder_of_other_files_is_refused() {
+    let dir = temp_dir("report-occupied");
+    let theirs = dir.join("theirs");
+    std::fs::create_dir_all(&theirs).expect("mkdir");
+    std::fs::write(theirs.join("index.html"), "my own page").expect("write");
+    let before = snapshot(&theirs);
+    let out = wearout()
+        .args(["evaluate", "--trials", "50", "--json", "--report-dir"])
+        .arg(&theirs)
+        .output()
+        .expect("runs");
+    assert_eq!(out.status.code(), Some(2));
+    assert!(out.stdout.is_empty(), "refused before the run");
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("theirs") && err.contains("index.html") && err.contains(MANIFEST),
+        "{err}"
+    );
+    assert_eq!(snapshot(&theirs), before);
+    // The library refuses it too.
+    assert!(report(7, 50).write_to(&theirs).is_err());
+    assert_eq!(snapshot(&theirs), before);
+
+    let empty = dir.join("empty");
+    std::fs::create_dir_all(&empty).expect("mkdir");
+    report(7, 50)
+        .write_to(&empty)
+        .expect("an empty folder is fine");
+    assert!(empty.join(MANIFEST).is_file());
+    // And again over its own earlier report.
+    report(8, 50)
+        .write_to(&empty)
+        .expect("an earlier report is fine");
+    let _ = std::fs::remove_dir_all(&dir);
 }

@@ -105,7 +105,7 @@ fn result_json_is_the_json_output() {
         let mut c = common::wearout();
         c.args(args);
         if let Some(d) = report {
-            c.arg("--report").arg(d);
+            c.arg("--report-dir").arg(d);
         }
         let out = c.output().expect("wearout runs");
         assert!(
@@ -330,10 +330,14 @@ fn html_is_self_contained_and_links_only_its_own_files() {
     let html = std::fs::read_to_string(dir.join("index.html")).expect("index.html");
     assert!(html.starts_with("<!DOCTYPE html>"));
     for banned in [
-        "http:", "https:", "://", "www.", "<script", "<link", "@import", "url(", " src=",
+        "http:", "https:", "://", "www.", "<link", "@import", "url(", " src=",
     ] {
         assert!(!html.contains(banned), "index.html contains `{banned}`");
     }
+    // Its only scripts are its own, inline: the target box's data and code.
+    assert_eq!(html.matches("<script").count(), 2, "two scripts");
+    assert!(html.contains("<script type=\"application/json\" id=\"wo-data\">"));
+    assert!(html.contains("<script>\n"));
     // Every link is to a heading of the page or a file of the report.
     for piece in html.split("href=\"").skip(1) {
         let target = &piece[..piece.find('"').expect("closed attribute")];
@@ -446,7 +450,9 @@ fn scenario_text_is_escaped_in_html() {
     m.description = "<script>alert(\"x\")</script> & <b>bold</b>".into();
     let report = wearout::report::frontier_report(&m, result, json, &Quiet).expect("renders");
     let html = report.text("index.html").expect("index.html");
-    assert!(!html.contains("<script"));
+    // Only the page's own two scripts; the description's is escaped.
+    assert_eq!(html.matches("<script").count(), 2);
+    assert!(!html.contains("<script>alert"));
     assert!(!html.contains("<b>bold"));
     assert!(html.contains("&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt; &amp; &lt;b&gt;"));
     let md = report.text("summary.md").expect("summary.md");

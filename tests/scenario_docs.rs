@@ -228,3 +228,34 @@ fn every_key_of_the_shipped_scenarios_is_documented() {
         missing.join("; ")
     );
 }
+
+/// Every field the reader accepts in `[scenario]` has its own row in the
+/// page's `[scenario]` table. The accepted list is the reader's own: the
+/// "allowed here" list of the error for an unknown field.
+#[test]
+fn every_scenario_field_the_reader_accepts_has_a_row() {
+    let text = "[scenario]\nname = \"x\"\nhorizon_hours = 100\ndowntime_penalty_per_hour = 1\ntarget_availability = 0.9\nno_such_field = 1\n";
+    let err = match wearout::scenario::parse("probe", text) {
+        Ok(_) => panic!("an unknown [scenario] field was accepted"),
+        Err(e) => e.to_string(),
+    };
+    let allowed = match err.split("allowed here: ").nth(1) {
+        Some(a) => a.lines().next().unwrap_or_default().to_string(),
+        None => panic!("no list of allowed fields in: {err}"),
+    };
+    let fields: Vec<&str> = allowed.split(", ").map(str::trim).collect();
+    assert!(fields.contains(&"horizon_hours"), "{fields:?}");
+    let doc = doc_text();
+    let section = match doc.split("\n## `[scenario]`").nth(1) {
+        Some(s) => s.split("\n## ").next().unwrap_or_default(),
+        None => panic!("docs/scenario-format.md has no `[scenario]` section"),
+    };
+    let missing: Vec<&&str> = fields
+        .iter()
+        .filter(|f| !section.contains(&format!("\n| `{f}` |")))
+        .collect();
+    assert!(
+        missing.is_empty(),
+        "[scenario] fields without a row in docs/scenario-format.md: {missing:?}"
+    );
+}

@@ -106,11 +106,20 @@ fn sigterm_and_ctrl_c_stop_evaluate_and_frontier_promptly() {
     let report = dir.join("report");
     std::fs::create_dir_all(&report).unwrap();
     std::fs::write(report.join("index.html"), "earlier report").unwrap();
+    // The mark of a folder wearout wrote (else the folder is refused
+    // before the run starts).
+    std::fs::write(report.join(".wearout-report"), "index.html\n").unwrap();
     let b1 = scenario("b1");
     let rep = report.display().to_string();
     // evaluate --json with a report: no JSON printed, the report untouched.
     let child = start(&[
-        "evaluate", &b1, "--trials", "1000000", "--json", "--report", &rep,
+        "evaluate",
+        &b1,
+        "--trials",
+        "1000000",
+        "--json",
+        "--report-dir",
+        &rep,
     ]);
     let (secs, code, stdout, stderr) = interrupt(child, Duration::from_millis(1500), "-TERM");
     assert!(secs < 1.0, "evaluate took {secs:.2} s to stop");

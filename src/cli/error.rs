@@ -140,7 +140,9 @@ impl From<ReportError> for CliError {
     fn from(e: ReportError) -> Self {
         match e {
             ReportError::Interrupted => CliError::Interrupted,
-            ReportError::Write { .. } | ReportError::Empty => CliError::User(e.to_string()),
+            ReportError::Write { .. } | ReportError::Occupied { .. } | ReportError::Empty => {
+                CliError::User(e.to_string())
+            }
             ReportError::Plot { .. }
             | ReportError::Csv(_)
             | ReportError::Json(_)

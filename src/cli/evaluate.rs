@@ -23,7 +23,7 @@ pub struct EvaluateArgs<'a> {
     /// compare them.
     pub policies: Vec<&'a str>,
     pub trials: Option<u64>,
-    /// `--report [DIR]`.
+    /// `--report` (`Some(None)`: the default folder) or `--report-dir DIR`.
     pub report: Option<Option<&'a Path>>,
 }
 

@@ -29,7 +29,7 @@ pub struct FrontierArgs<'a> {
     pub max_full: usize,
     /// Re-cost these policies instead of searching (`--policies`).
     pub policies: Option<&'a Path>,
-    /// `--report [DIR]`.
+    /// `--report` (`Some(None)`: the default folder) or `--report-dir DIR`.
     pub report: Option<Option<&'a Path>>,
 }
 

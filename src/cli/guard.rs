@@ -62,5 +62,7 @@ pub fn guard(model: &Model, run: Run<'_>) -> Result<(), CliError> {
         Run::Search(config) => estimate::frontier(model, config, threads),
         Run::Merge { policies, trials } => estimate::merge(model, policies, trials),
     };
-    check(model, &est)
+    check(model, &est)?;
+    super::warn(model);
+    Ok(())
 }

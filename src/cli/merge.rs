@@ -22,7 +22,7 @@ pub struct MergeArgs<'a> {
     pub json: bool,
     /// Read this scenario file instead of the text embedded in the shards.
     pub scenario: Option<&'a Path>,
-    /// `--report [DIR]`.
+    /// `--report` (`Some(None)`: the default folder) or `--report-dir DIR`.
     pub report: Option<Option<&'a Path>>,
 }
 

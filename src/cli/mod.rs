@@ -117,11 +117,15 @@ pub enum Command {
         #[arg(long)]
         trials: Option<u64>,
         /// Also write a report folder (index.html, summary.md, CSV tables,
-        /// result.json, SVG figures) into DIR; without DIR, into
-        /// reports/<scenario-name>/. Give the scenario FILE before --report
-        /// when leaving DIR out.
-        #[arg(long, value_name = "DIR", num_args = 0..=1)]
+        /// result.json, SVG figures) into the default folder,
+        /// reports/<scenario-name>-evaluate-<policy>/. (--report=DIR, with the equals sign, is read as
+        /// --report-dir DIR.)
+        #[arg(long, value_name = "DIR", num_args = 0..=1, require_equals = true)]
         report: Option<Option<PathBuf>>,
+        /// Write the report folder into DIR (created if missing; it must be
+        /// empty or hold an earlier wearout report).
+        #[arg(long = "report-dir", value_name = "DIR", conflicts_with = "report")]
+        report_dir: Option<PathBuf>,
         #[command(flatten)]
         run: RunOpts,
     },
@@ -150,11 +154,15 @@ pub enum Command {
         #[arg(long, value_name = "FILE.json")]
         policies: Option<PathBuf>,
         /// Also write a report folder (index.html, summary.md, CSV tables,
-        /// result.json, SVG figures) into DIR; without DIR, into
-        /// reports/<scenario-name>/. Give the scenario FILE before --report
-        /// when leaving DIR out.
-        #[arg(long, value_name = "DIR", num_args = 0..=1)]
+        /// result.json, SVG figures) into the default folder,
+        /// reports/<scenario-name>/. (--report=DIR, with the equals sign, is read as
+        /// --report-dir DIR.)
+        #[arg(long, value_name = "DIR", num_args = 0..=1, require_equals = true)]
         report: Option<Option<PathBuf>>,
+        /// Write the report folder into DIR (created if missing; it must be
+        /// empty or hold an earlier wearout report).
+        #[arg(long = "report-dir", value_name = "DIR", conflicts_with = "report")]
+        report_dir: Option<PathBuf>,
         #[command(flatten)]
         run: RunOpts,
     },
@@ -170,9 +178,15 @@ pub enum Command {
         /// (it must give the same scenario).
         #[arg(long, value_name = "FILE")]
         scenario: Option<PathBuf>,
-        /// Also write a report folder, as `evaluate --report` does.
-        #[arg(long, value_name = "DIR", num_args = 0..=1)]
+        /// Also write a report folder, as `evaluate --report` or `frontier
+        /// --report` does, into its default folder. (--report=DIR, with
+        /// the equals sign, is read as --report-dir DIR.)
+        #[arg(long, value_name = "DIR", num_args = 0..=1, require_equals = true)]
         report: Option<Option<PathBuf>>,
+        /// Write the report folder into DIR (created if missing; it must be
+        /// empty or hold an earlier wearout report).
+        #[arg(long = "report-dir", value_name = "DIR", conflicts_with = "report")]
+        report_dir: Option<PathBuf>,
     },
     /// Fit life distributions to maintenance records or a removal log (CSV).
     Fit(fit::FitCommand),
@@ -218,6 +232,7 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), CliError> {
     match cli.command {
         Command::Check { file } => {
             let loaded = load_or_demo(file.as_deref())?;
+            warn(&loaded.model);
             write!(out, "{}", render::check(&loaded))?;
             Ok(())
         }
@@ -226,14 +241,17 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), CliError> {
             policy,
             trials,
             report,
+            report_dir,
             run,
         } => {
             set_threads(run.threads)?;
+            let report = report_choice(&report, &report_dir);
+            not_a_folder(file.as_deref(), report)?;
             let args = evaluate::EvaluateArgs {
                 file: file.as_deref(),
                 policies: policy.iter().map(String::as_str).collect(),
                 trials,
-                report: report.as_ref().map(|d| d.as_deref()),
+                report,
             };
             evaluate::run(&args, &run, out)
         }
@@ -245,9 +263,12 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), CliError> {
             max_full,
             policies,
             report,
+            report_dir,
             run,
         } => {
             set_threads(run.threads)?;
+            let report = report_choice(&report, &report_dir);
+            not_a_folder(file.as_deref(), report)?;
             let args = frontier::FrontierArgs {
                 file: file.as_deref(),
                 trials,
@@ -255,7 +276,7 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), CliError> {
                 exhaustive,
                 max_full,
                 policies: policies.as_deref(),
-                report: report.as_ref().map(|d| d.as_deref()),
+                report,
             };
             frontier::run(&args, &run, out)
         }
@@ -264,12 +285,13 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), CliError> {
             json,
             scenario,
             report,
+            report_dir,
         } => {
             let args = merge::MergeArgs {
                 shards: &shards,
                 json,
                 scenario: scenario.as_deref(),
-                report: report.as_ref().map(|d| d.as_deref()),
+                report: report_choice(&report, &report_dir),
             };
             merge::run(&args, out)
         }
@@ -290,6 +312,41 @@ fn dispatch(cli: Cli, out: &mut dyn Write) -> Result<(), CliError> {
             })
         }
     }
+}
+
+/// The report folder asked for: `Some(Some(DIR))` from `--report-dir DIR`
+/// (or the older `--report=DIR`), `Some(None)` from `--report` alone (the
+/// default folder), `None` without either.
+fn report_choice<'a>(
+    report: &'a Option<Option<PathBuf>>,
+    report_dir: &'a Option<PathBuf>,
+) -> Option<Option<&'a Path>> {
+    match report_dir {
+        Some(d) => Some(Some(d.as_path())),
+        None => report.as_ref().map(|d| d.as_deref()),
+    }
+}
+
+/// Check the report's folder before the run: a folder given must be new,
+/// empty or an earlier report. And `--report` no longer takes a folder
+/// after a space, so `evaluate --report out` reads `out` as the scenario
+/// file: when that "scenario" is a folder, say what was probably meant.
+fn not_a_folder(file: Option<&Path>, report: Option<Option<&Path>>) -> Result<(), CliError> {
+    // A folder given for the report is checked before any trial is run.
+    if let Some(Some(dir)) = report {
+        wearout::report::check_dir(dir)?;
+    }
+    if let (Some(f), Some(None)) = (file, report)
+        && f.is_dir()
+    {
+        return Err(CliError::user(format!(
+            "`{}` is a folder, not a scenario file; --report takes no folder after a space (it writes to the default folder): to write the report into `{}`, use --report-dir {}",
+            f.display(),
+            f.display(),
+            f.display()
+        )));
+    }
+    Ok(())
 }
 
 /// A writer that notes whether its reader went away.
@@ -345,6 +402,17 @@ fn prepare(file: Option<&Path>, opts: &RunOpts) -> Result<Prepared, CliError> {
     Ok(Prepared { loaded, target })
 }
 
+/// Print the model's warnings (legal but suspicious values) on stderr,
+/// one `warning:` line each; the run goes ahead. Runs print them once the
+/// run's own checks have passed (in `guard`), so a refused run shows only
+/// its error.
+fn warn(model: &Model) {
+    let mut err = std::io::stderr().lock();
+    for w in model.warnings() {
+        let _ = writeln!(err, "warning: {w}");
+    }
+}
+
 /// A finished result to show.
 enum Finished<'a> {
     /// One policy's summary (`evaluate`, or the merge of its shards).
@@ -375,7 +443,8 @@ fn show(
             let plan = mean_life_plan(model, &summary.policy);
             let j = EvaluateJson::new(model, summary, &plan);
             print(out, json, &j, || render::evaluate(model, &j))?;
-            write_report(report, &model.name, |bar| {
+            let default = wearout::report::default_evaluate_dir(&model.name, &summary.policy.name);
+            write_report(report, default, |bar| {
                 wearout::report::evaluate_report(model, summary, &j, bar)
             })
         }
@@ -386,7 +455,7 @@ fn show(
         } => {
             let j = FrontierJson::new(model, result, exhaustive);
             print(out, json, &j, || render::frontier(model, result, &j))?;
-            write_report(report, &model.name, |bar| {
+            write_report(report, wearout::report::default_dir(&model.name), |bar| {
                 wearout::report::frontier_report(model, result, &j, bar)
             })
         }
@@ -408,17 +477,20 @@ fn print<T: serde::Serialize>(
     Ok(())
 }
 
-/// Write a report folder when `--report` was given (`Some(None)`: the
-/// scenario's default folder) and say on stderr where it landed.
+/// Write a report folder when `--report` or `--report-dir` was given
+/// (`Some(None)`: the folder `default`) and say on stderr where it landed.
 fn write_report(
     dir: Option<Option<&Path>>,
-    scenario: &str,
+    default: PathBuf,
     make: impl FnOnce(&dyn Progress) -> Result<Report, ReportError>,
 ) -> Result<(), CliError> {
     let Some(dir) = dir else {
         return Ok(());
     };
-    let dir = dir.map_or_else(|| wearout::report::default_dir(scenario), PathBuf::from);
+    let dir = dir.map_or(default, PathBuf::from);
+    // Refuse a folder that is neither empty nor an earlier report before
+    // the report is made (the trials re-run for trials.csv take time).
+    wearout::report::check_dir(&dir)?;
     let bar = progress::Bar::new("report", 0);
     let report = make(&bar);
     bar.finish();

@@ -132,7 +132,7 @@ pub fn check(loaded: &Loaded) -> String {
     let mut rows = vec![vec![
         "part type".to_string(),
         "life".into(),
-        "shape".into(),
+        "shape or sigma".into(),
         "mean life h".into(),
         "price".into(),
         "lead time mean h".into(),
@@ -143,7 +143,10 @@ pub fn check(loaded: &Loaded) -> String {
         rows.push(vec![
             p.name.clone(),
             p.life.family().into(),
-            num(p.life.shape_figure(), 2),
+            match p.life.shape_named() {
+                ("shape", x) => num(x, 2),
+                (name, x) => format!("{name} {}", num(x, 2)),
+            },
             num(p.life.mean(), 0),
             money(p.price),
             num(p.lead_time.mean(), 0),
@@ -166,6 +169,31 @@ pub fn check(loaded: &Loaded) -> String {
         ]);
     }
     s.push_str(&table(&rows));
+    s.push_str("\nWhere each part type's life came from\n");
+    for p in &model.parts {
+        s.push_str(&format!("  {}: ", p.name));
+        match &p.life_source {
+            None => s.push_str("given as parameters in the scenario\n"),
+            Some(src) => {
+                s.push_str(&format!(
+                    "fitted to {}{} ({} failures, {} suspensions): {}, {}\n",
+                    src.file,
+                    if src.records_part == p.name {
+                        String::new()
+                    } else {
+                        format!(", part '{}'", src.records_part)
+                    },
+                    src.failures,
+                    src.suspensions,
+                    src.family,
+                    src.how
+                ));
+                if let Some(c) = &src.caution {
+                    s.push_str(&format!("    caution: {c}\n"));
+                }
+            }
+        }
+    }
     s.push_str("\nPolicies, with what a mean-life plan predicts\n");
     let mut rows = vec![vec![
         "policy".to_string(),
@@ -239,8 +267,10 @@ pub fn evaluate(model: &Model, j: &EvaluateJson) -> String {
         j.seed,
         j.units,
         num(j.horizon_hours, 0),
-        if j.parameter_uncertainty {
+        if model.draws_life_parameters() {
             "; life parameters drawn per trial from their fits"
+        } else if model.parameter_uncertainty {
+            "; parameter uncertainty asked for, but no part type's life is fitted to records, so every trial used the scenario's life parameters"
         } else {
             ""
         }

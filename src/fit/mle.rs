@@ -193,7 +193,7 @@ fn judge(fit: &mut Fit, n_params: usize, extra: Option<String>) {
 ///
 /// # Errors
 /// [`FitError::NoFailures`]; [`FitError::SingleFailure`] for the
-/// two-parameter families with one failure; [`FitError::TooFewFailures`]
+/// families of two or three parameters with one failure; [`FitError::TooFewFailures`]
 /// for the 3-parameter Weibull with fewer than 3 failures;
 /// [`FitError::Degenerate`] or [`FitError::LocationAtBoundary`] when the
 /// likelihood has no usable maximum.
@@ -210,6 +210,11 @@ pub fn fit_mle(sample: &Sample, family: Family) -> Result<Fit, FitError> {
         return Err(FitError::SingleFailure {
             part: sample.part().to_string(),
             family: family.name(),
+            params: if family.n_params() == 3 {
+                "three"
+            } else {
+                "two"
+            },
             suspensions: sample.suspension_count(),
         });
     }
@@ -1261,7 +1266,11 @@ mod tests {
             let e = fit_mle(&smp, fam).unwrap_err();
             assert!(matches!(e, FitError::SingleFailure { .. }));
             assert!(e.to_string().contains("exponential"));
+            assert!(e.to_string().contains("has two parameters"), "{e}");
         }
+        // The 3-parameter Weibull says three (shape, scale, location).
+        let e = fit_mle(&smp, Family::Weibull3).unwrap_err();
+        assert!(e.to_string().contains("has three parameters"), "{e}");
         let e = fit_mle(&smp, Family::Exponential).unwrap();
         assert!(!e.reliable, "one failure is flagged");
         let fixed = fit_weibull_known_shape(&smp, 2.0).unwrap();

@@ -155,10 +155,10 @@ pub enum FitError {
         /// First and last line of the part's records, when known.
         lines: Option<(u64, u64)>,
     },
-    /// One failure and a two-parameter family.
+    /// One failure and a family of two or more parameters.
     #[error(
-        "part '{part}': only one failure ({suspensions} suspensions); a {family} fit has two \
-         parameters and one failure time cannot fix both (the spread, hence the shape, is not \
+        "part '{part}': only one failure ({suspensions} suspensions); a {family} fit has {params} \
+         parameters and one failure time cannot fix them all (the spread, hence the shape, is not \
          estimable and its interval is unbounded in practice). Fit the exponential (one \
          parameter), or give the Weibull shape from experience and estimate only the scale \
          (`wearout fit --shape B`, or `assumed_shape = B` in a scenario's records life)"
@@ -166,6 +166,8 @@ pub enum FitError {
     SingleFailure {
         part: String,
         family: &'static str,
+        /// The family's parameter count, in words ("two", "three").
+        params: &'static str,
         suspensions: usize,
     },
     /// Fewer failures than a family needs.
@@ -690,13 +692,20 @@ impl PartFits {
         self.mle.first()
     }
 
+    /// The MLE fit with the lowest AIC among those whose standard errors
+    /// can be trusted ([`Fit::reliable`]).
+    pub fn best_reliable(&self) -> Option<&Fit> {
+        self.mle.iter().find(|f| f.reliable)
+    }
+
     /// The MLE fit of one family.
     pub fn mle_of(&self, family: Family) -> Option<&Fit> {
         self.mle.iter().find(|f| f.distribution == family)
     }
 
     /// The fit to use (the one pasted into a scenario) and why: the
-    /// assumed-shape fit when a shape was given, else the lowest AIC.
+    /// assumed-shape fit when a shape was given, else the lowest AIC among
+    /// the fits that can be trusted (of all fits when none can).
     pub fn chosen(&self) -> Option<(&Fit, String)> {
         if let Some(a) = &self.assumed_shape {
             let shape = a.param("shape").unwrap_or(f64::NAN);
@@ -730,14 +739,35 @@ impl PartFits {
             };
             return Some((a, why));
         }
-        self.best().map(|b| {
-            (
-                b,
+        let lowest = self.best()?;
+        Some(match self.best_reliable() {
+            Some(r) if r.distribution != lowest.distribution => (
+                r,
+                format!(
+                    "{} by maximum likelihood, the lowest AIC among the fits that can be trusted; \
+                     {} has a lower AIC but was passed over: {}",
+                    r.distribution.name(),
+                    lowest.distribution.name(),
+                    lowest
+                        .reliability_note
+                        .as_deref()
+                        .unwrap_or("its standard errors are not to be trusted")
+                ),
+            ),
+            Some(r) => (
+                r,
                 format!(
                     "{} by maximum likelihood, lowest AIC",
-                    b.distribution.name()
+                    r.distribution.name()
                 ),
-            )
+            ),
+            None => (
+                lowest,
+                format!(
+                    "{} by maximum likelihood, lowest AIC; no family's fit can be trusted",
+                    lowest.distribution.name()
+                ),
+            ),
         })
     }
 }

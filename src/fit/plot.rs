@@ -257,7 +257,7 @@ fn data_marks(sample: &Sample) -> DataMarks {
         return DataMarks {
             points,
             spans: Vec::new(),
-            points_label: "failures at median ranks (Benard; Johnson-adjusted for suspensions)",
+            points_label: "each failure at its median rank (Benard's approximation, Johnson's adjustment for suspensions)",
         };
     }
     let steps = turnbull::estimate(sample.obs(), 3000);
@@ -277,7 +277,7 @@ fn data_marks(sample: &Sample) -> DataMarks {
     DataMarks {
         points,
         spans,
-        points_label: "failures: nonparametric (Turnbull) estimate, middle of each step",
+        points_label: "failures by Turnbull's estimate, which assumes no family: middle of each step",
     }
 }
 
@@ -421,7 +421,7 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
     let method = match line.method {
         super::Method::Mle => "Maximum likelihood",
         super::Method::RankRegression => "Rank regression",
-        super::Method::AssumedShape => "Shape assumed",
+        super::Method::AssumedShape => "Shape taken as given",
     };
     let line_label = format!("{method}: {family}, scale {} h", fmt_hours(scale));
 
@@ -442,8 +442,8 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
             .map_err(plot_err)?;
         chart
             .configure_mesh()
-            .x_desc("Hours in service (log scale)")
-            .y_desc("Unreliability, % failed (Weibull scale)")
+            .x_desc("Operating hours at failure (logarithmic)")
+            .y_desc("Share failed by that age, % (Weibull grid)")
             .bold_line_style(GRID_BOLD.stroke_width(1))
             .light_line_style(GRID_LIGHT.stroke_width(1))
             .axis_style(INK.stroke_width(1))
@@ -459,7 +459,7 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
             chart
                 .draw_series(std::iter::once(Polygon::new(poly, LINE.mix(0.16).filled())))
                 .map_err(plot_err)?
-                .label("95% confidence band (pointwise, delta method on log-quantile)")
+                .label("95 % band around the line, age by age (delta method on ln hours)")
                 .legend(|(x, y)| {
                     Rectangle::new([(x, y - 6), (x + 22, y + 6)], LINE.mix(0.16).filled())
                 });
@@ -522,7 +522,7 @@ pub fn probability_plot_svg(sample: &Sample, line: &Fit) -> Result<String, FitEr
                         + Rectangle::new([(-4, -4), (4, 4)], SPAN.filled())
                 }))
                 .map_err(plot_err)?
-                .label("failures found at inspections: bar across the span they lie in")
+                .label("a failure found at an inspection: a bar over the hours it lies between")
                 .legend(|(x, y)| {
                     EmptyElement::at((x + 11, y))
                         + Rectangle::new([(-4, -4), (4, 4)], SPAN.filled())
@@ -589,7 +589,7 @@ mod tests {
         let svg = probability_plot_svg(&s, &fit).unwrap();
         assert!(svg.starts_with("<svg"));
         assert_eq!(svg.matches("<circle").count(), 6 + 1, "6 points + legend");
-        assert!(svg.contains("Hours in service"));
+        assert!(svg.contains("Operating hours at failure"));
         assert!(svg.contains("63.2%"));
         assert!(svg.contains("1,000"));
         assert!(svg.contains("<polygon"));

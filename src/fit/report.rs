@@ -329,9 +329,14 @@ pub fn table_with_source(parts: &[PartFits], source: Option<&RecordsSource>) -> 
             );
             r
         };
+        // The fit used when the lowest AIC was passed over as untrusted.
+        let passed_over = p.best().filter(|b| !b.reliable).and(p.best_reliable());
         for f in &p.mle {
             let rank = match f.aic_rank {
                 Some(1) => "* 1".to_string(),
+                Some(r) if passed_over.is_some_and(|u| u.distribution == f.distribution) => {
+                    format!("> {r}")
+                }
                 Some(r) => r.to_string(),
                 None => String::new(),
             };
@@ -354,10 +359,15 @@ pub fn table_with_source(parts: &[PartFits], source: Option<&RecordsSource>) -> 
             out.push_str(&line);
             out.push('\n');
         }
-        out.push_str(
-            "\n  * = lowest AIC (best). Intervals: log-Wald from the observed information \
+        out.push_str(&format!(
+            "\n  * = lowest AIC{}. Intervals: log-Wald from the observed information \
              (mu: Wald); the rank_regression row is for comparison and is not ranked.\n",
-        );
+            if passed_over.is_some() {
+                "; > = the fit used, the lowest AIC among the fits that can be trusted"
+            } else {
+                " (best)"
+            }
+        ));
         if let Some(w) = p.mle_of(Family::Weibull) {
             if !w.lr_ci95.is_empty() {
                 out.push_str(&format!(

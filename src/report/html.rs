@@ -1,6 +1,7 @@
 //! The HTML page: one self-contained file (styles inline, figures inline
-//! as SVG, no scripts, no fonts or anything else fetched), readable on a
-//! screen and printable on A4 or Letter.
+//! as SVG, its one script inline, no fonts or anything else fetched),
+//! readable on a screen, with scripts on or off, and printable on A4 or
+//! Letter.
 //!
 //! Owns: the page template and its style sheet (`report.css`).
 //! May use: `super::doc`.
@@ -30,7 +31,9 @@ fn contents(blocks: &[Block]) -> String {
 }
 
 /// The whole page. The first block should be the level-1 heading.
-pub fn page(title: &str, blocks: &[Block], generator: &str) -> String {
+/// `live` (the target panel and its script, or nothing) goes after the
+/// header.
+pub fn page(title: &str, blocks: &[Block], generator: &str, live: &str) -> String {
     let (head, rest) = match blocks.split_first() {
         Some((h @ Block::Heading(1, ..), rest)) => (to_html(std::slice::from_ref(h)), rest),
         _ => (String::new(), blocks),
@@ -43,7 +46,7 @@ pub fn page(title: &str, blocks: &[Block], generator: &str) -> String {
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n\
 <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n\
 <meta name=\"generator\" content=\"{}\">\n<title>{}</title>\n<style>\n{CSS}</style>\n</head>\n<body>\n<main>\n\
-<header>\n{head}<div class=\"intro\">{intro}</div>\n</header>\n{}{}</main>\n</body>\n</html>\n",
+<header>\n{head}<div class=\"intro\">{intro}</div>\n</header>\n{live}{}{}</main>\n</body>\n</html>\n",
         html_escape(generator),
         html_escape(title),
         contents(body),

@@ -20,10 +20,14 @@
 //! staging or checking changes nothing. A manifest (`.wearout-report`)
 //! lists the files written, so files of an earlier report that this one
 //! no longer writes (e.g. a figure) are removed, and nothing else ever is.
+//! The manifest is also the mark of a folder wearout wrote: a report is
+//! written only into a new or empty folder or one holding a manifest
+//! ([`check_dir`]), never over a folder of someone's own files.
 
 mod doc;
 mod finance;
 mod html;
+mod live;
 mod network;
 mod plots;
 mod tables;
@@ -50,6 +54,10 @@ pub const MANIFEST: &str = ".wearout-report";
 pub enum ReportError {
     #[error("cannot write the report into {dir}: {message}")]
     Write { dir: String, message: String },
+    #[error(
+        "will not write the report into {dir}: the folder holds other files ({found}) and no earlier wearout report (no {MANIFEST} file); give an empty or new folder with --report-dir DIR, so that nothing there is replaced"
+    )]
+    Occupied { dir: String, found: String },
     #[error("cannot draw the figure {figure}: {message}")]
     Plot { figure: String, message: String },
     #[error("cannot write a CSV table: {0}")]
@@ -122,6 +130,7 @@ impl Report {
                 return Err(fail(format!("`{}` is not a plain file name", f.name)));
             }
         }
+        check_dir(dir)?;
         std::fs::create_dir_all(dir).map_err(|e| fail(format!("cannot create the folder: {e}")))?;
         // The targets must be absent or plain files.
         for f in &self.files {
@@ -211,6 +220,63 @@ pub fn default_dir(scenario_name: &str) -> PathBuf {
         name.insert(0, '_');
     }
     Path::new("reports").join(name)
+}
+
+/// The default report folder of an evaluation: `reports/<name>-evaluate-<policy>/`
+/// (made safe as in [`default_dir`]), apart from the frontier's folder so
+/// that neither replaces the other.
+pub fn default_evaluate_dir(scenario_name: &str, policy: &str) -> PathBuf {
+    default_dir(&format!("{scenario_name}-evaluate-{policy}"))
+}
+
+/// Whether a report may be written into `dir`: it is missing, or an empty
+/// folder, or a folder holding the manifest of an earlier wearout report.
+/// Any other folder (a user's own files) is refused, so nothing of theirs
+/// is replaced.
+///
+/// # Errors
+/// [`ReportError::Occupied`] naming the folder and a few of its files, or
+/// [`ReportError::Write`] when it exists and is not a folder or cannot be
+/// listed.
+pub fn check_dir(dir: &Path) -> Result<(), ReportError> {
+    let fail = |m: String| ReportError::Write {
+        dir: dir.display().to_string(),
+        message: m,
+    };
+    let meta = match std::fs::metadata(dir) {
+        Ok(m) => m,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(()),
+        Err(e) => return Err(fail(e.to_string())),
+    };
+    if !meta.is_dir() {
+        return Err(fail("it exists and is not a folder".to_string()));
+    }
+    if dir.join(MANIFEST).is_file() {
+        return Ok(());
+    }
+    let mut names: Vec<String> = std::fs::read_dir(dir)
+        .map_err(|e| fail(format!("cannot list it: {e}")))?
+        .filter_map(|e| e.ok())
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .collect();
+    if names.is_empty() {
+        return Ok(());
+    }
+    names.sort();
+    let count = names.len();
+    names.truncate(3);
+    Err(ReportError::Occupied {
+        dir: dir.display().to_string(),
+        found: format!(
+            "{}{}",
+            names.join(", "),
+            if count > 3 {
+                format!(" and {} more", count - 3)
+            } else {
+                String::new()
+            }
+        ),
+    })
 }
 
 /// The figures of a view, each with its caption and description.
@@ -307,9 +373,15 @@ fn assemble(
     };
     let generator = format!("wearout {}", env!("CARGO_PKG_VERSION"));
     let mut r = Report::default();
+    let sets: Vec<String> = v
+        .policies
+        .iter()
+        .map(|p| words::settings(model, p))
+        .collect();
+    let live = live::panel(v, &sets);
     r.push(
         "index.html",
-        html::page(&title, &blocks, &generator).into_bytes(),
+        html::page(&title, &blocks, &generator, &live).into_bytes(),
     );
     let mut md = doc::to_markdown(&blocks);
     md.push_str(&format!(

@@ -191,7 +191,7 @@ fn is_next(v: &View<'_>, a: &PolicyView<'_>, b: &PolicyView<'_>) -> bool {
 }
 
 /// A policy's settings in short: `traction motor run to failure, S1; ...`.
-fn settings(model: &Model, p: &PolicyView<'_>) -> String {
+pub(super) fn settings(model: &Model, p: &PolicyView<'_>) -> String {
     p.policy
         .parts
         .iter()
@@ -494,7 +494,7 @@ fn levels(v: &View<'_>) -> Vec<Block> {
     if !steps.is_empty() {
         out.push(Block::Heading(
             3,
-            "What each step up costs".into(),
+            "Paying for a higher chance, policy by policy".into(),
             "steps".into(),
         ));
         out.push(Block::Bullets(steps));
@@ -1007,8 +1007,10 @@ fn assumptions(v: &View<'_>) -> Vec<Block> {
         "Downtime penalty: {}{cur} per unit-hour down.",
         num(model.downtime_penalty, 2).trim_end_matches(".00")
     ))]);
-    items.push(vec![t(if model.parameter_uncertainty {
+    items.push(vec![t(if model.draws_life_parameters() {
         "Life parameters: each trial draws its own from the fits' sampling distributions (parts whose lives come from records).".to_string()
+    } else if model.parameter_uncertainty {
+        "Life parameters: fixed at the scenario's values in every trial; parameter uncertainty was asked for, but no part type's life is fitted to records, so there was nothing to draw.".to_string()
     } else {
         "Life parameters: fixed at the scenario's values in every trial.".to_string()
     })]);
@@ -1016,9 +1018,10 @@ fn assumptions(v: &View<'_>) -> Vec<Block> {
         let mut s = vec![
             c(&part.name),
             t(format!(
-                ": life {} (shape {}, mean {}); lead time {}; price {}{cur}",
+                ": life {} ({} {}, mean {}); lead time {}; price {}{cur}",
                 part.life.family(),
-                trim(part.life.shape_figure(), 2),
+                part.life.shape_named().0,
+                trim(part.life.shape_named().1, 2),
                 hours(part.life.mean()),
                 lead_time_words(&part.lead_time),
                 money(part.price)
@@ -1156,6 +1159,18 @@ pub fn document(v: &View<'_>, figures: &[Figure]) -> Vec<Block> {
         ]),
         Block::Boxed("In short".into(), vec![Block::Bullets(in_short(v))]),
     ];
+    let warnings = model.warnings();
+    if !warnings.is_empty() {
+        doc.push(Block::Boxed(
+            "Inputs to check".into(),
+            vec![
+                Block::Para(vec![t(
+                    "These values are allowed but unusual; the figures below rest on them as given.",
+                )]),
+                Block::Bullets(warnings.into_iter().map(|w| vec![t(w)]).collect()),
+            ],
+        ));
+    }
     if v.kind == Kind::Frontier {
         doc.extend(levels(v));
         doc.extend(answer_sections(v));

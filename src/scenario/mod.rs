@@ -25,8 +25,9 @@ use crate::fit::{
     read_records_or_log, select_parts,
 };
 use crate::model::{
-    CostBasis, CostMeasure, CostStatistic, FleetGroup, InitialAge, Model, MoneySettings,
-    PartPolicy, PartSearch, PartType, Policy, Position, Rule, SearchSpace, Site, UnitType,
+    CostBasis, CostMeasure, CostStatistic, FleetGroup, InitialAge, LifeSource, Model,
+    MoneySettings, PartPolicy, PartSearch, PartType, Policy, Position, Rule, SearchSpace, Site,
+    UnitType,
 };
 use crate::uncertainty::LifeUncertainty;
 use tree::{Tbl, Text, Val, each};
@@ -389,16 +390,18 @@ const RECORDS_DISTS: &[&str] = &[
 
 /// A part's life: given as parameters, or fitted to records (then with the
 /// fit's sampling uncertainty).
+type LifeRead = (Life, Option<LifeUncertainty>, Option<LifeSource>);
+
 fn read_life_or_records(
     v: Val<'_, '_>,
     part: &str,
     base: Option<&Path>,
-) -> Result<(Life, Option<LifeUncertainty>), ScenarioError> {
+) -> Result<LifeRead, ScenarioError> {
     if v.is_table() && v.table()?.has("records") {
-        let (life, u) = read_records_life(v, part, base)?;
-        Ok((life, Some(u)))
+        let (life, u, source) = read_records_life(v, part, base)?;
+        Ok((life, Some(u), Some(source)))
     } else {
-        Ok((read_life(v)?, None))
+        Ok((read_life(v)?, None, None))
     }
 }
 
@@ -413,7 +416,7 @@ fn read_records_life(
     v: Val<'_, '_>,
     part: &str,
     base: Option<&Path>,
-) -> Result<(Life, LifeUncertainty), ScenarioError> {
+) -> Result<(Life, LifeUncertainty, LifeSource), ScenarioError> {
     let t = v.table()?;
     // Each field's place, for errors raised after the table is read.
     let (rel, at_records) = t.need(
@@ -518,14 +521,33 @@ fn read_records_life(
             }
         }
     };
-    let fit = match assumed {
-        Some(b) => fit_assumed_shape(&sample, b, DEFAULT_CONFIDENCE).map_err(|e| e.to_string()),
+    let (fit, how, passed_over) = match assumed {
+        Some(b) => fit_assumed_shape(&sample, b, DEFAULT_CONFIDENCE)
+            .map(|f| (f, format!("weibull with the assumed shape {b}"), None))
+            .map_err(|e| e.to_string()),
         None => fit_records(&sample, dist),
     }
     .map_err(|m| err_at(&at_records, format!("{shown}: {m}")))?;
     let u = LifeUncertainty::from_fit(&fit, &sample)
         .map_err(|e| err_at(&at_records, format!("{shown}: {e}")))?;
-    Ok((fit.life(), u))
+    let caution = match (passed_over, fit.reliable, &fit.reliability_note) {
+        (Some(p), _, _) => Some(p),
+        (None, false, Some(note)) => Some(format!(
+            "the {} fit's standard errors are not to be trusted: {note}",
+            fit.distribution.name()
+        )),
+        _ => None,
+    };
+    let source = LifeSource {
+        file: rel,
+        records_part: sample.part().to_string(),
+        failures: fit.failures,
+        suspensions: fit.suspensions,
+        family: fit.distribution.name().to_string(),
+        how,
+        caution,
+    };
+    Ok((fit.life(), u, source))
 }
 
 /// The one sample of the records named `name`.
@@ -543,13 +565,34 @@ fn one_part(records: &[Record], name: &str) -> Result<Sample, String> {
 }
 
 /// Fit one family by maximum likelihood, or every family and keep the
-/// lowest AIC (`best`).
-fn fit_records(sample: &Sample, dist: &str) -> Result<Fit, String> {
+/// lowest AIC among the fits whose standard errors can be trusted (`best`;
+/// the lowest AIC of all when none can). Returns the fit, how it was
+/// chosen, and, when the lowest-AIC fit was passed over, why.
+fn fit_records(sample: &Sample, dist: &str) -> Result<(Fit, String, Option<String>), String> {
     if dist == "best" {
         let fits = fit_part(sample).map_err(|e| e.to_string())?;
-        return match fits.best() {
-            Some(f) => Ok(f.clone()),
-            None => Err(format!(
+        let lowest = fits.best();
+        let reliable = fits.best_reliable();
+        return match (lowest, reliable) {
+            (Some(l), Some(r)) if l.distribution != r.distribution => Ok((
+                r.clone(),
+                "lowest AIC among the fits that can be trusted".to_string(),
+                Some(format!(
+                    "the lowest-AIC fit, {}, was passed over ({}); {}, the best of the families whose fit can be trusted, is used",
+                    l.distribution.name(),
+                    l.reliability_note
+                        .as_deref()
+                        .unwrap_or("its standard errors are not to be trusted"),
+                    r.distribution.name()
+                )),
+            )),
+            (Some(_), Some(r)) => Ok((r.clone(), "lowest AIC".to_string(), None)),
+            (Some(l), None) => Ok((
+                l.clone(),
+                "lowest AIC; no family's fit can be trusted".to_string(),
+                None,
+            )),
+            (None, _) => Err(format!(
                 "no family could be fitted: {}",
                 fits.not_fitted
                     .iter()
@@ -563,7 +606,9 @@ fn fit_records(sample: &Sample, dist: &str) -> Result<Fit, String> {
         .into_iter()
         .find(|f| f.name() == dist)
         .ok_or_else(|| format!("unknown family `{dist}`"))?;
-    fit_mle(sample, family).map_err(|e| e.to_string())
+    fit_mle(sample, family)
+        .map(|f| (f, "asked for".to_string(), None))
+        .map_err(|e| e.to_string())
 }
 
 fn read_pair(v: Val<'_, '_>, what: &str, positive: bool) -> Result<(f64, f64), ScenarioError> {
@@ -588,7 +633,7 @@ fn read_part(
     base: Option<&Path>,
 ) -> Result<PartType, ScenarioError> {
     let t = v.table()?;
-    let (life, life_uncertainty) = t.need(
+    let (life, life_uncertainty, life_source) = t.need(
         "life",
         "the life distribution, e.g. { dist = \"weibull\", shape = 2.2, scale = 14000 }, or fitted to records: { records = \"removals.csv\", dist = \"weibull\" }",
         |v| read_life_or_records(v, name, base),
@@ -652,6 +697,7 @@ fn read_part(
         holding_per_hour: holding.per_spare_hour(price),
         hard_limit,
         life_uncertainty,
+        life_source,
         repair,
     })
 }

@@ -1,6 +1,7 @@
 //! The frontier figure: cost against the chance of meeting the target.
 
 use super::*;
+use crate::report::doc::html_escape;
 
 /// The left end of the frontier figure's cost axis: when the cheapest
 /// frontier point lies far to the left of all the others (more than the
@@ -51,13 +52,18 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
     let (x0, x1) = pad(lo, hi, 0.04);
     // Room under 0 % for the off-scale label.
     let y0 = if off_scale { -0.1 } else { -0.02 };
-    draw(FIG, 600, |root| {
-        let title = format!(
-            "Cost against the chance of at least {} availability",
-            pct_trim(v.target, 1)
-        );
+    let mut layer = String::new();
+    let title = format!(
+        "Cost against the chance of at least {} availability",
+        pct_trim(v.target, 1)
+    );
+    let y_desc = format!(
+        "Chance of meeting {} (share of trials)",
+        pct_trim(v.target, 1)
+    );
+    let svg = draw(FIG, 600, |root| {
         let mut chart = ChartBuilder::on(root)
-            .caption(title, (FONT, 20).into_font().color(&INK))
+            .caption(&title, (FONT, 20).into_font().color(&INK))
             .margin(16)
             .margin_right(36)
             .margin_bottom(44)
@@ -71,10 +77,7 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
                 cost_measure_label(v.measure),
                 v.cur_paren()
             ))
-            .y_desc(format!(
-                "Chance of meeting {} (share of trials)",
-                pct_trim(v.target, 1)
-            ))
+            .y_desc(&y_desc)
             .x_label_formatter(&|x| money_short(*x))
             .y_label_formatter(&|y| format!("{:.0}\u{a0}%", 100.0 * y))
             .max_light_lines(0)
@@ -84,94 +87,111 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
             .map_err(pe(FIG))?;
         let plot = chart.plotting_area().get_pixel_range();
         let inside = |x: f64| x >= x0 && x <= x1;
+        // The points, bars, rings and labels are written as plain SVG in
+        // groups of their own (added after the figure is drawn), so that
+        // the page's script can move them when the reader picks another
+        // target: each point's group is moved by a translation, its bars
+        // are redrawn, and `data-py0`/`data-py1` give the pixel rows of
+        // chance 0 and 1 (the chance axis is linear).
+        let py_of = |c: f64| chart.backend_coord(&(x0, c)).1;
+        let (py0, py1) = (py_of(0.0), py_of(1.0));
 
         // Every searched policy, one faint dot per pixel position.
         let mut seen = HashSet::new();
-        let faint: Vec<(f64, f64)> = v
-            .searched
-            .iter()
-            .map(|s| (s.1.mean, s.2.value))
-            .filter(|p| inside(p.0) && seen.insert(chart.backend_coord(p)))
-            .collect();
-        chart
-            .draw_series(
-                faint
-                    .iter()
-                    .map(|&p| Circle::new(p, 3, FAINT.mix(0.6).filled())),
-            )
-            .map_err(pe(FIG))?;
+        let mut searched = String::new();
+        for p in v.searched.iter().map(|s| (s.1.mean, s.2.value)) {
+            let px = chart.backend_coord(&p);
+            if inside(p.0) && seen.insert(px) {
+                searched.push_str(&svg_circle(px, 3, &FAINT, 0.6, true, ""));
+            }
+        }
+        layer.push_str(&format!("<g id=\"wo-searched\">{searched}</g>\n"));
 
         let line = PALETTE[0];
         let first = usize::from(off_scale);
-        let path: Vec<(f64, f64)> = pts[first..]
+        let path: Vec<(i32, i32)> = pts[first..]
             .iter()
-            .map(|p| (p.cost.mean, p.chance.value))
+            .map(|p| chart.backend_coord(&(p.cost.mean, p.chance.value)))
             .collect();
-        chart
-            .draw_series(LineSeries::new(path.clone(), line.stroke_width(2)))
-            .map_err(pe(FIG))?;
+        layer.push_str(&format!(
+            "<polyline id=\"wo-line\" fill=\"none\" stroke=\"{}\" stroke-width=\"2\" points=\"{}\"/>\n",
+            hex(&line),
+            points_attr(&path)
+        ));
         // Pixel boxes of the points and labels drawn, to keep labels apart.
         let mut placed = Placed::default();
         let cap = (x1 - x0) * 0.004;
-        for p in &pts[first..] {
+        let mut groups: Vec<String> = vec![String::new(); pts.len()];
+        for (i, p) in pts.iter().enumerate().skip(first) {
             let (x, y) = (p.cost.mean, p.chance.value);
-            let bar = line.mix(0.8).stroke_width(1);
-            let segs = [
-                vec![(x, p.chance.lo), (x, p.chance.hi)],
-                vec![(x - cap, p.chance.lo), (x + cap, p.chance.lo)],
-                vec![(x - cap, p.chance.hi), (x + cap, p.chance.hi)],
-                vec![(x - 1.96 * p.cost.se, y), (x + 1.96 * p.cost.se, y)],
-            ];
-            chart
-                .draw_series(segs.into_iter().map(|seg| PathElement::new(seg, bar)))
-                .map_err(pe(FIG))?;
-            let (px, py) = chart.backend_coord(&(x, y));
-            placed.take((px - 5, py - 5, px + 5, py + 5));
+            let px = |c: (f64, f64)| chart.backend_coord(&c);
+            let (dot_x, dot_y) = px((x, y));
+            let (cl, cr) = (px((x - cap, y)).0, px((x + cap, y)).0);
+            // The chance bars, redrawn by the script: vertical, two caps.
+            for (k, seg) in [
+                vec![px((x, p.chance.lo)), px((x, p.chance.hi))],
+                vec![(cl, px((x, p.chance.lo)).1), (cr, px((x, p.chance.lo)).1)],
+                vec![(cl, px((x, p.chance.hi)).1), (cr, px((x, p.chance.hi)).1)],
+            ]
+            .iter()
+            .enumerate()
+            {
+                layer.push_str(&format!(
+                    "<polyline class=\"wo-bar\" data-i=\"{i}\" data-k=\"{k}\" data-x=\"{dot_x}\" data-x0=\"{cl}\" data-x1=\"{cr}\" fill=\"none\" stroke=\"{}\" stroke-opacity=\"0.8\" stroke-width=\"1\" points=\"{}\"/>\n",
+                    hex(&line),
+                    points_attr(seg)
+                ));
+            }
+            let g = &mut groups[i];
+            g.push_str(&format!(
+                "<polyline fill=\"none\" stroke=\"{}\" stroke-opacity=\"0.8\" stroke-width=\"1\" points=\"{}\"/>",
+                hex(&line),
+                points_attr(&[
+                    px((x - 1.96 * p.cost.se, y)),
+                    px((x + 1.96 * p.cost.se, y))
+                ])
+            ));
+            g.push_str(&svg_circle((dot_x, dot_y), 4, &line, 1.0, true, "wo-dot"));
+            placed.take((dot_x - 5, dot_y - 5, dot_x + 5, dot_y + 5));
         }
-        chart
-            .draw_series(path.iter().map(|&p| Circle::new(p, 4, line.filled())))
-            .map_err(pe(FIG))?;
         if off_scale {
             // The cheapest point, off the scale: an arrow at the left edge.
             let p = pts[0];
-            let (_, py) = chart.backend_coord(&(x0, p.chance.value));
-            let (ex, _) = chart.backend_coord(&(path[0].0, 0.0));
+            let py = py_of(p.chance.value);
+            let ex = path[0].0;
             let lx = plot.0.start + 4;
-            root.draw(&PathElement::new(
-                vec![(lx, py), (ex, py)],
-                line.mix(0.6).stroke_width(2),
-            ))
-            .map_err(pe(FIG))?;
-            root.draw(&Polygon::new(
-                vec![(lx, py), (lx + 9, py - 5), (lx + 9, py + 5)],
-                line.filled(),
-            ))
-            .map_err(pe(FIG))?;
-            let label = format!(
-                "{}: {}{}, {} (off the scale)",
-                p.name(),
-                money_short(p.cost.mean),
-                v.cur(),
-                chance_pct(p.chance.value)
-            );
-            let w = text_width(&label, 12.0);
+            let g = &mut groups[0];
+            g.push_str(&format!(
+                "<polyline fill=\"none\" stroke=\"{}\" stroke-opacity=\"0.6\" stroke-width=\"2\" points=\"{}\"/>",
+                hex(&line),
+                points_attr(&[(lx, py), (ex, py)])
+            ));
+            g.push_str(&format!(
+                "<polygon fill=\"{}\" points=\"{}\"/>",
+                hex(&line),
+                points_attr(&[(lx, py), (lx + 9, py - 5), (lx + 9, py + 5)])
+            ));
+            let label = format!("{}: {}{}, ", p.name(), money_short(p.cost.mean), v.cur(),);
+            let chance = chance_pct(p.chance.value);
+            let w = text_width(&format!("{label}{chance} (off the scale)"), 12.0);
             placed.take((lx + 12, py + 4, lx + 12 + w, py + 20));
-            text(
-                root,
-                &label,
-                (lx + 12, py + 6),
-                &style(12.0, &INK, HPos::Left, VPos::Top),
-                FIG,
-            )?;
+            g.push_str(&format!(
+                "<text x=\"{}\" y=\"{}\" font-family=\"{FONT}\" font-size=\"12\" fill=\"{}\" dominant-baseline=\"text-before-edge\">{}<tspan class=\"wo-offchance\">{}</tspan> (off the scale)</text>",
+                lx + 12,
+                py + 6,
+                hex(&INK),
+                html_escape(&label),
+                html_escape(&chance)
+            ));
         }
         // Rings round the singled-out policies.
-        chart
-            .draw_series(
-                v.chosen_views()
-                    .filter(|p| inside(p.cost.mean))
-                    .map(|p| Circle::new((p.cost.mean, p.chance.value), 8, INK.stroke_width(2))),
-            )
-            .map_err(pe(FIG))?;
+        for &i in &v.chosen {
+            let p = pts[i];
+            if inside(p.cost.mean) {
+                let c = chart.backend_coord(&(p.cost.mean, p.chance.value));
+                groups[i].push_str(&svg_circle(c, 8, &INK, 1.0, false, "wo-ring"));
+            }
+        }
 
         // The named policies: squares, each labelled with its name.
         let mark = PALETTE[1];
@@ -254,14 +274,27 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
                 None => continue,
             };
             placed.take((spot.0, spot.1, spot.0 + w, spot.1 + h));
-            let st = style(
-                size,
-                if chosen { &INK } else { &SOFT },
-                HPos::Left,
-                VPos::Top,
-            );
-            text(root, p.name(), spot, &st, FIG)?;
+            groups[i].push_str(&format!(
+                "<text class=\"wo-label\" x=\"{}\" y=\"{}\" font-family=\"{FONT}\" font-size=\"{size}\" fill=\"{}\" dominant-baseline=\"text-before-edge\">{}</text>",
+                spot.0,
+                spot.1,
+                hex(if chosen { &INK } else { &SOFT }),
+                html_escape(p.name())
+            ));
         }
+        for (i, g) in groups.iter().enumerate() {
+            let p = pts[i];
+            layer.push_str(&format!(
+                "<g class=\"wo-pt\" data-i=\"{i}\" data-name=\"{}\" data-chance=\"{}\">{g}</g>\n",
+                html_escape(p.name()),
+                p.chance.value
+            ));
+        }
+        layer.insert_str(
+            0,
+            &format!("<g id=\"wo-frontier\" data-py0=\"{py0}\" data-py1=\"{py1}\">\n"),
+        );
+        layer.push_str("</g>\n");
 
         // Shorter words when the scenario's own policies take a place too.
         let mut legend = if named.is_empty() {
@@ -294,5 +327,73 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
         }
         legend_row(root, 40, 580, &legend, FIG)?;
         Ok(())
+    })?;
+    // The layer goes last (drawn on top), and the title and the chance
+    // axis's title get ids for the script.
+    let svg = tag_text(&svg, &title, "wo-title");
+    let svg = tag_text(&svg, &y_desc, "wo-ydesc");
+    Ok(match svg.rfind("</svg>") {
+        Some(end) => format!("{}{layer}{}", &svg[..end], &svg[end..]),
+        None => svg,
     })
+}
+
+/// `#rrggbb` of a colour.
+fn hex(c: &RGBColor) -> String {
+    format!("#{:02x}{:02x}{:02x}", c.0, c.1, c.2)
+}
+
+/// An SVG `points` attribute.
+fn points_attr(pts: &[(i32, i32)]) -> String {
+    pts.iter()
+        .map(|(x, y)| format!("{x},{y}"))
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// A plain SVG circle, filled or as a ring of width 2.
+fn svg_circle(
+    c: (i32, i32),
+    r: i32,
+    colour: &RGBColor,
+    opacity: f64,
+    filled: bool,
+    class: &str,
+) -> String {
+    let class = if class.is_empty() {
+        String::new()
+    } else {
+        format!(" class=\"{class}\"")
+    };
+    if filled {
+        format!(
+            "<circle{class} cx=\"{}\" cy=\"{}\" r=\"{r}\" fill=\"{}\" fill-opacity=\"{opacity}\"/>",
+            c.0,
+            c.1,
+            hex(colour)
+        )
+    } else {
+        format!(
+            "<circle{class} cx=\"{}\" cy=\"{}\" r=\"{r}\" fill=\"none\" stroke=\"{}\" stroke-width=\"2\"/>",
+            c.0,
+            c.1,
+            hex(colour)
+        )
+    }
+}
+
+/// Add `id` to the SVG `<text>` element whose content is `content` (as
+/// the SVG backend escapes it), if there is one.
+fn tag_text(svg: &str, content: &str, id: &str) -> String {
+    let escaped = html_escape(content);
+    let Some(at) = svg
+        .find(&format!(">{content}</text>"))
+        .or_else(|| svg.find(&format!(">{escaped}</text>")))
+    else {
+        return svg.to_string();
+    };
+    match svg[..at].rfind("<text") {
+        Some(open) => format!("{}<text id=\"{id}\"{}", &svg[..open], &svg[open + 5..]),
+        None => svg.to_string(),
+    }
 }

@@ -77,10 +77,11 @@ pub fn life(v: &View<'_>) -> Result<String, ReportError> {
                     .fold(life_quantile(&part.life, 0.995), f64::max)
                     * 1.05;
                 let caption = format!(
-                    "{} ({}, shape {}, mean {})",
+                    "{} ({}, {} {}, mean {})",
                     display(&part.name),
                     part.life.family(),
-                    trim(part.life.shape_figure(), 2),
+                    part.life.shape_named().0,
+                    trim(part.life.shape_named().1, 2),
                     hours(mean)
                 );
                 let mut chart = ChartBuilder::on(area)
