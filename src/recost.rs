@@ -444,16 +444,81 @@ pub fn parse_policies(model: &Model, file: &str, text: &str) -> Result<Vec<Polic
                 ),
             )
         };
-        let stock_of = |v: &Value, path: String| {
+        let level = |v: &Value, path: &str| {
             v.as_u64()
                 .filter(|&s| s <= MAX_STOCK)
-                .map(|s| Stock::single(s as u32))
+                .map(|s| s as u32)
                 .ok_or_else(|| {
                     err(
-                        path,
+                        path.to_string(),
                         format!("expected a whole number from 0 to {MAX_STOCK} (got {v})"),
                     )
                 })
+        };
+        // Without sites a level; with sites an object as in the scenario
+        // file: a level per site (or `every_site`) and `depot`.
+        let stock_of = |v: &Value, path: String| {
+            if !model.has_sites() {
+                return level(v, &path).map(Stock::single);
+            }
+            let sites: Vec<&str> = model.sites.iter().map(|s| s.name.as_str()).collect();
+            let form = format!(
+                "an object with the level at each site ({}) or `every_site`{}",
+                sites.join(", "),
+                if model.depot.is_some() {
+                    ", and `depot`"
+                } else {
+                    ""
+                }
+            );
+            let Some(o) = v.as_object() else {
+                return Err(err(
+                    path,
+                    format!("this scenario has sites: expected {form} (got {v})"),
+                ));
+            };
+            let every = o
+                .get("every_site")
+                .map(|x| level(x, &format!("{path}.every_site")))
+                .transpose()?;
+            let mut at = Vec::with_capacity(sites.len());
+            for name in &sites {
+                let l = match o.get(*name) {
+                    Some(x) => level(x, &format!("{path}.{name}"))?,
+                    None => every.ok_or_else(|| {
+                        err(
+                            path.clone(),
+                            format!("no level for site `{name}`; expected {form}"),
+                        )
+                    })?,
+                };
+                at.push(l);
+            }
+            let depot = match (o.get("depot"), model.depot.is_some()) {
+                (Some(x), true) => level(x, &format!("{path}.depot"))?,
+                (None, true) => {
+                    return Err(err(
+                        path,
+                        format!("no level for the depot; expected {form}"),
+                    ));
+                }
+                (Some(_), false) => {
+                    return Err(err(
+                        format!("{path}.depot"),
+                        "a depot level, but the scenario has no [depot]".into(),
+                    ));
+                }
+                (None, false) => 0,
+            };
+            for k in o.keys() {
+                if k != "every_site" && k != "depot" && !sites.contains(&k.as_str()) {
+                    return Err(err(
+                        format!("{path}.{k}"),
+                        format!("unknown key; expected {form}"),
+                    ));
+                }
+            }
+            Ok(Stock::at_sites(&at, depot))
         };
         let mut parts = Vec::with_capacity(model.parts.len());
         if obj.contains_key("rules") {

@@ -5,7 +5,7 @@
 
 mod common;
 
-use common::{Ran, load, run_wearout, scenario_path};
+use common::{Ran, run_wearout};
 
 use wearout::frontier::{Bound, FrontierConfig, search, thin_spread};
 use wearout::model::{Policy, Rule};
@@ -27,7 +27,7 @@ fn config(search_trials: u64, validate_trials: u64, target: f64, max: usize) -> 
 /// item 1: the rail fleet's 99 % answer was 130 k dearer than needed).
 #[test]
 fn thinning_misses_no_level_answer_on_the_demo() {
-    let m = load("demo");
+    let m = common::demo_2026();
     let (n, v) = (300, 800);
     let r = search(&m, &config(n, v, m.target, 3), &Quiet).unwrap();
     let st = r.stats;
@@ -94,7 +94,7 @@ fn thinning_misses_no_level_answer_on_the_demo() {
 /// same trials, and a dominated one is dominated for real.
 #[test]
 fn named_policies_stand_against_the_frontier() {
-    let m = load("demo");
+    let m = common::demo_2026();
     let cfg = config(200, 500, m.target, 12);
     let r = search(&m, &cfg, &Quiet).unwrap();
     assert_eq!(r.named.len(), m.policies.len());
@@ -138,7 +138,7 @@ fn named_policies_stand_against_the_frontier() {
 /// itself differs by exactly nothing.
 #[test]
 fn paired_differences_follow_their_definition() {
-    let m = load("demo");
+    let m = common::demo_2026();
     let a = evaluate(&m, m.policy("current").unwrap(), 0..400, m.target, &Quiet).unwrap();
     let b = evaluate(&m, m.policy("reference").unwrap(), 0..400, m.target, &Quiet).unwrap();
     let p = paired(&a, &b);
@@ -164,7 +164,7 @@ fn paired_differences_follow_their_definition() {
 /// library gives them; several policies with --report are refused.
 #[test]
 fn evaluate_compares_named_policies() {
-    let demo = scenario_path("demo");
+    let demo = common::demo_2026_path();
     let Ran { code, stdout, .. } = run_wearout(&[
         "evaluate",
         &demo,
@@ -178,7 +178,7 @@ fn evaluate_compares_named_policies() {
     ]);
     assert_eq!(code, Some(0));
     let j: serde_json::Value = serde_json::from_str(&stdout).unwrap();
-    let m = load("demo");
+    let m = common::demo_2026();
     assert_eq!(j["policies"].as_array().unwrap().len(), 2);
     assert_eq!(
         j["policies"][0]["code"],
@@ -225,7 +225,7 @@ fn frontier_policies_reads_the_scenario_field_names() {
             "hvac_compressor": {"rule": "run_to_failure", "stock": 1}}}}"#,
     )
     .unwrap();
-    let demo = scenario_path("demo");
+    let demo = common::demo_2026_path();
     let Ran {
         code,
         stdout,
@@ -242,7 +242,7 @@ fn frontier_policies_reads_the_scenario_field_names() {
     ]);
     assert_eq!(code, Some(0), "{stderr}");
     let j: serde_json::Value = serde_json::from_str(&stdout).unwrap();
-    let m = load("demo");
+    let m = common::demo_2026();
     assert_eq!(j["policies"][0]["name"], "today");
     assert_eq!(
         j["policies"][0]["code"],
@@ -259,7 +259,7 @@ fn frontier_policies_reads_the_scenario_field_names() {
 /// the JSON too; every frontier policy at a listed bound is listed.
 #[test]
 fn bounds_that_bind_are_named() {
-    let mut m = load("demo");
+    let mut m = common::demo_2026();
     let door = m.part_id("door_drive").unwrap();
     m.search.as_mut().unwrap().parts[door].stock_max = 1;
     let r = search(&m, &config(200, 300, m.target, 12), &Quiet).unwrap();
@@ -315,4 +315,67 @@ fn bounds_that_bind_are_named() {
     for (p, pj) in r.points.iter().zip(&j.policies) {
         assert_eq!(pj.code, p.costed.policy.code(&m));
     }
+}
+
+/// With sites a policy list gives each part type's stock per site (as the
+/// scenario file does); a bare number is refused with exit 2, not a panic.
+#[test]
+fn policy_lists_give_stock_per_site_with_sites() {
+    let dir = common::temp_dir("answer_site_policies");
+    let demo = common::scenario_path("demo");
+    let write = |name: &str, stock: &str| {
+        let file = dir.join(name);
+        let parts: Vec<String> = [
+            "traction_motor",
+            "brake_actuator",
+            "door_drive",
+            "hvac_compressor",
+        ]
+        .iter()
+        .map(|p| {
+            // The brake actuator is safety-critical: never run to failure.
+            let rule = if *p == "brake_actuator" {
+                r#""rule": "age", "interval_hours": 8000"#
+            } else {
+                r#""rule": "run_to_failure""#
+            };
+            format!("\"{p}\": {{{rule}, \"stock\": {stock}}}")
+        })
+        .collect();
+        std::fs::write(
+            &file,
+            format!("{{\"policies\": {{\"mine\": {{{}}}}}}}", parts.join(", ")),
+        )
+        .unwrap();
+        file
+    };
+    let bare = write("bare.json", "1");
+    let Ran { code, stderr, .. } = run_wearout(&[
+        "frontier",
+        &demo,
+        "--policies",
+        bare.to_str().unwrap(),
+        "--validate-trials",
+        "50",
+    ]);
+    assert_eq!(code, Some(2), "{stderr}");
+    assert!(stderr.contains("this scenario has sites"), "{stderr}");
+    let per_site = write("per_site.json", r#"{"every_site": 1, "depot": 2}"#);
+    let Ran {
+        code,
+        stdout,
+        stderr,
+        ..
+    } = run_wearout(&[
+        "frontier",
+        &demo,
+        "--policies",
+        per_site.to_str().unwrap(),
+        "--validate-trials",
+        "50",
+        "--json",
+    ]);
+    assert_eq!(code, Some(0), "{stderr}");
+    let j: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    assert_eq!(j["policies"][0]["name"], "mine");
 }

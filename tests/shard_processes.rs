@@ -101,7 +101,7 @@ fn b2_shards_merge_to_the_single_run_table_json_and_report() {
     let single_text = ok(
         bin()
             .args(args)
-            .arg("--report")
+            .arg("--report-dir")
             .arg(&single_report)
             .output()
             .unwrap(),
@@ -114,7 +114,7 @@ fn b2_shards_merge_to_the_single_run_table_json_and_report() {
         bin()
             .arg("merge")
             .args(&files)
-            .arg("--report")
+            .arg("--report-dir")
             .arg(&merged_report)
             .output()
             .unwrap(),
