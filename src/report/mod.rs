@@ -296,7 +296,8 @@ fn figures(v: &View<'_>) -> Result<Vec<doc::Figure>, ReportError> {
             "frontier.svg",
             plots::frontier(v)?,
             format!(
-                "Cost against the chance of meeting {target} availability: every policy simulated (grey) and the non-dominated ones (blue, with 95 % intervals)."
+                "Cost against the chance of meeting {}: every policy simulated (grey) and the non-dominated ones (blue, with 95 % intervals).",
+                v.target_words()
             ),
             format!(
                 "Scatter of cost against chance of meeting {target}, with the non-dominated policies joined by a line and labelled."

@@ -88,10 +88,7 @@ fn step(v: &View<'_>, lo: &PolicyView<'_>, hi: &PolicyView<'_>) -> Vec<Span> {
         b(chance_pct(hi.chance.value)),
         t(" ("),
         c(hi.name()),
-        t(format!(
-            ") chance of meeting {} availability costs ",
-            pct_trim(v.target, 1)
-        )),
+        t(format!(") chance of meeting {} costs ", v.target_words())),
         b(format!("{}{}", money_short(dcost), v.cur())),
         t(" more over the horizon"),
     ];
@@ -353,10 +350,16 @@ fn mean_life_headline(v: &View<'_>) -> Vec<Span> {
             let mut s = vec![
                 t("The mean-life plan would pick "),
                 c(p.labelled()),
-                t(format!(
-                    ", the cheapest policy it says meets {target} (it predicts {}); simulated, ",
-                    pct1(p.plan.availability)
-                )),
+                t(match v.model.ready {
+                    None => format!(
+                        ", the cheapest policy it says meets {target} (it predicts {}); simulated, ",
+                        pct1(p.plan.availability)
+                    ),
+                    Some(_) => format!(
+                        ", the cheapest policy whose expected units up it puts at or above every site's ready count (it predicts {} fleet availability); simulated, ",
+                        pct1(p.plan.availability)
+                    ),
+                }),
                 c(p.name()),
                 t(" meets it in "),
                 b(chance_pct(p.chance.value)),
@@ -374,7 +377,11 @@ fn mean_life_headline(v: &View<'_>) -> Vec<Span> {
             let best = &v.policies[v.policies.len() - 1];
             vec![
                 t(format!(
-                    "The mean-life plan says no frontier policy meets {target}; simulated, "
+                    "The mean-life plan says no frontier policy meets {}; simulated, ",
+                    match v.model.ready {
+                        None => target.clone(),
+                        Some(_) => v.target_words(),
+                    }
                 )),
                 c(best.labelled()),
                 t(format!(
@@ -457,8 +464,8 @@ fn levels(v: &View<'_>) -> Vec<Block> {
             "levels".into(),
         ),
         Block::Para(vec![t(format!(
-            "For each chance of meeting {} availability, the cheapest non-dominated policy found whose chance (on the fresh trials) is at least that level. Cost: {} over the horizon{}.",
-            pct_trim(v.target, 1),
+            "For each chance of meeting {}, the cheapest non-dominated policy found whose chance (on the fresh trials) is at least that level. Cost: {} over the horizon{}.",
+            v.target_words(),
             crate::result::cost_measure_label(v.measure),
             v.cur_paren()
         ))]),

@@ -53,10 +53,13 @@ pub fn frontier(v: &View<'_>) -> Result<String, ReportError> {
     // Room under 0 % for the off-scale label.
     let y0 = if off_scale { -0.1 } else { -0.02 };
     let mut layer = String::new();
-    let title = format!(
-        "Cost against the chance of at least {} availability",
-        pct_trim(v.target, 1)
-    );
+    let title = match v.model.ready {
+        None => format!(
+            "Cost against the chance of at least {} availability",
+            pct_trim(v.target, 1)
+        ),
+        Some(_) => "Cost against the chance of meeting the ready-units target".to_string(),
+    };
     let y_desc = format!(
         "Chance of meeting {} (share of trials)",
         pct_trim(v.target, 1)
