@@ -103,7 +103,8 @@ tables = [t for t in re.findall(r"<table.*?</table>", ptable, re.S) if re.search
 for row in re.findall(r"<tr[^>]*>(.*?)</tr>", tables[0] if tables else "", re.S):
     cells = [html.unescape(re.sub(r"<[^>]+>", "", c)).strip() for c in re.findall(r"<t[dh][^>]*>(.*?)</t[dh]>", row, re.S)]
     if len(cells) > 1:
-        rows[cells[0]] = cells[1]
+        # The first cell names the policy and its code: `F3 (1EAEAR)`.
+        rows[re.sub(r" \([0-9A-Z]+\)$", "", cells[0])] = cells[1]
 for p in cli["policies"]:
     c = p["chance"]
     text = f'{pct(c["value"])} [{pct(c["lo"])} to {pct(c["hi"])}]'

@@ -170,7 +170,8 @@ document.addEventListener("DOMContentLoaded", function () {
     // Every policy's chance in the policies table.
     if (policiesTable) {
       Array.prototype.forEach.call(policiesTable.tBodies[0].rows, function (row) {
-        var name = row.cells[0].textContent.trim();
+        // The first cell names the policy and its code: `F3 (1EAEAR)`.
+        var name = row.cells[0].textContent.trim().replace(/ \([0-9A-Z]+\)$/, "");
         for (var i = 0; i < D.policies.length; i++) {
           if (D.policies[i].name === name) {
             row.cells[1].textContent = withInterval(ch[i]) + (nd[i] ? "" : " (dominated here)");
