@@ -828,8 +828,9 @@ fn pct2(x: f64) -> String {
     format!("{:.2} %", 100.0 * x)
 }
 
-/// Left-aligned table rows with columns padded to their widest cell.
-fn table(rows: &[Vec<String>]) -> String {
+/// Table rows padded to their widest cell: the first column left-aligned,
+/// the others right-aligned (also the money and stores tables').
+pub(super) fn table(rows: &[Vec<String>]) -> String {
     let cols = rows.iter().map(Vec::len).max().unwrap_or(0);
     let mut width = vec![0; cols];
     for r in rows {

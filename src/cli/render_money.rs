@@ -7,6 +7,7 @@
 //! main tables stay as they were).
 //! May use: the library's result types, `wearout::text`.
 
+use super::render::table;
 use wearout::model::Model;
 use wearout::result::{EvaluateJson, FrontierJson, MoneyJson};
 use wearout::summary::Chance;
@@ -217,33 +218,4 @@ fn signed(x: f64) -> String {
     } else {
         format!("-{}", money(-x))
     }
-}
-
-/// Left-aligned first column, the others right-aligned, padded.
-fn table(rows: &[Vec<String>]) -> String {
-    let cols = rows.iter().map(Vec::len).max().unwrap_or(0);
-    let mut width = vec![0; cols];
-    for r in rows {
-        for (i, c) in r.iter().enumerate() {
-            width[i] = width[i].max(c.chars().count());
-        }
-    }
-    let mut out = String::new();
-    for r in rows {
-        let mut line = String::new();
-        for (i, c) in r.iter().enumerate() {
-            let pad = width[i] - c.chars().count();
-            if i == 0 {
-                line.push_str(c);
-                line.push_str(&" ".repeat(pad));
-            } else {
-                line.push_str("  ");
-                line.push_str(&" ".repeat(pad));
-                line.push_str(c);
-            }
-        }
-        out.push_str(line.trim_end());
-        out.push('\n');
-    }
-    out
 }
